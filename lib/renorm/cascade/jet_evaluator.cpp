@@ -150,7 +150,7 @@ void pow_nonneg(arb_ptr res, arb_srcptr u, arb_srcptr q, slong prec)
 } // namespace
 
 JetEvaluator::JetEvaluator(const Expression& expr, int order, slong prec)
-    : m_nodes(expr.nodes()), m_order(order), m_prec(prec)
+    : m_nodes(expr.nodes()), m_order(order), m_active_order(order), m_prec(prec)
 {
     if (order < 0 || order > 2)
         throw std::invalid_argument("JetEvaluator: order must be 0, 1 or 2");
@@ -173,7 +173,7 @@ JetEvaluator::JetEvaluator(const Expression& expr, int order, slong prec)
             fmpz_t k;
             fmpz_init(k);
             arb_srcptr p = reg(nd.b);
-            if (arb_is_exact(p) && arb_get_unique_fmpz(k, p) && fmpz_cmpabs_ui(k, 1u << 20) <= 0) {
+            if (arb_is_exact(p) && arb_get_unique_fmpz(k, p) && fmpz_bits(k) <= 20) {
                 m_pow_mode[i] = 1;
                 m_pow_int[i] = fmpz_get_si(k);
             } else {
@@ -191,7 +191,7 @@ void JetEvaluator::eval_node(int i)
     arb_ptr out = reg(i);
     arb_srcptr a = nd.a >= 0 ? reg(nd.a) : nullptr;
     arb_srcptr b = nd.b >= 0 ? reg(nd.b) : nullptr;
-    const Flags fl{nd.dep_x, nd.dep_mu, m_order};
+    const Flags fl{nd.dep_x, nd.dep_mu, m_active_order};
     arb_ptr g0 = m_tmp[0];
     arb_ptr g1 = m_tmp[1];
     arb_ptr g2 = m_tmp[2];
@@ -215,12 +215,12 @@ void JetEvaluator::eval_node(int i)
         return;
     case Op::var_x:
         arb_set(out + V, m_x);
-        if (m_order >= 1)
+        if (m_active_order >= 1)
             arb_one(out + DX);
         return;
     case Op::var_mu:
         arb_set(out + V, m_mu);
-        if (m_order >= 1)
+        if (m_active_order >= 1)
             arb_one(out + DM);
         return;
     case Op::add:
@@ -242,7 +242,9 @@ void JetEvaluator::eval_node(int i)
         }
         // a / b = a * (1/b); 1/u has derivatives -1/u^2 and 2/u^3.
         arb_ptr s = reg(m_scratch);
-        const Flags fb{m_nodes[nd.b].dep_x, m_nodes[nd.b].dep_mu, m_order};
+        for (int c = 0; c < 5; ++c)
+            arb_zero(s + c); // the scratch jet may hold components of another node
+        const Flags fb{m_nodes[nd.b].dep_x, m_nodes[nd.b].dep_mu, m_active_order};
         arb_inv(g0, b + V, prec);
         arb_sqr(g1, g0, prec);
         arb_mul(g2, g1, g0, prec);
@@ -365,7 +367,7 @@ void JetEvaluator::eval_node(int i)
         // Variable exponent: a^b = exp(b log a).
         arb_ptr s1 = reg(m_scratch);
         arb_ptr s2 = reg(m_scratch + 1);
-        const Flags fa{m_nodes[nd.a].dep_x, m_nodes[nd.a].dep_mu, m_order};
+        const Flags fa{m_nodes[nd.a].dep_x, m_nodes[nd.a].dep_mu, m_active_order};
         arb_log(g0, a + V, prec);
         arb_inv(g1, a + V, prec);
         arb_sqr(g2, g1, prec);
@@ -384,8 +386,7 @@ void JetEvaluator::eval_node(int i)
     }
 }
 
-void JetEvaluator::evaluate(arb_ptr f, arb_ptr fx, arb_ptr fmu, arb_ptr fxx, arb_ptr fxmu,
-                            arb_srcptr x, arb_srcptr mu)
+void JetEvaluator::run_nodes(arb_srcptr x, arb_srcptr mu)
 {
     m_x = x;
     m_mu = mu;
@@ -393,7 +394,15 @@ void JetEvaluator::evaluate(arb_ptr f, arb_ptr fx, arb_ptr fmu, arb_ptr fxx, arb
     for (int i = 0; i < n; ++i)
         if (m_nodes[i].dep_x || m_nodes[i].dep_mu)
             eval_node(i);
-    arb_srcptr r = reg(n - 1);
+    m_x = nullptr;
+    m_mu = nullptr;
+}
+
+void JetEvaluator::evaluate(arb_ptr f, arb_ptr fx, arb_ptr fmu, arb_ptr fxx, arb_ptr fxmu,
+                            arb_srcptr x, arb_srcptr mu)
+{
+    run_nodes(x, mu);
+    arb_srcptr r = reg(static_cast<int>(m_nodes.size()) - 1);
     if (f)
         arb_set(f, r + V);
     if (m_order >= 1) {
@@ -408,8 +417,35 @@ void JetEvaluator::evaluate(arb_ptr f, arb_ptr fx, arb_ptr fmu, arb_ptr fxx, arb
         if (fxmu)
             arb_set(fxmu, r + DXM);
     }
-    m_x = nullptr;
-    m_mu = nullptr;
+}
+
+void JetEvaluator::evaluate_centered(arb_ptr f, arb_ptr fx, arb_ptr fmu, arb_ptr fxx,
+                                     arb_ptr fxmu, arb_srcptr x, arb_srcptr mu)
+{
+    if (m_order < 1)
+        throw std::invalid_argument("evaluate_centered needs order >= 1");
+    arb_ptr direct = m_tmp[5];
+    arb_ptr dfx = m_tmp[6];
+    arb_ptr mid = m_tmp[7];
+    evaluate(direct, dfx, fmu, fxx, fxmu, x, mu);
+    if (fx)
+        arb_set(fx, dfx);
+    if (arb_is_exact(x) || !arb_is_finite(dfx)) {
+        arb_set(f, direct);
+        return;
+    }
+    // f(m) + f_x(X) (X - m), m = mid X  (mean value theorem, for each mu in the ball)
+    arb_get_mid_arb(mid, x);
+    m_active_order = 0;
+    run_nodes(mid, mu);
+    m_active_order = m_order;
+    arb_srcptr r = reg(static_cast<int>(m_nodes.size()) - 1);
+    arb_ptr t = m_tmp[3];
+    arb_sub(t, x, mid, m_prec);
+    arb_mul(t, t, dfx, m_prec);
+    arb_add(t, t, r + V, m_prec);
+    if (!arb_intersection(f, t, direct, m_prec))
+        arb_set(f, t); // cannot happen for exact arithmetic; keep the centred enclosure
 }
 
 Partials JetEvaluator::evaluate(const ball::Ball& x, const ball::Ball& mu)

@@ -1,0 +1,258 @@
+#include <renorm/cascade/jet_evaluator.hpp>
+#include <renorm/cascade/superstable.hpp>
+
+#include <cmath>
+#include <cstdint>
+#include <memory>
+#include <stdexcept>
+
+namespace renorm::cascade {
+
+const char* to_string(Status s)
+{
+    switch (s) {
+    case Status::certified:
+        return "certified";
+    case Status::not_certified:
+        return "not_certified";
+    case Status::bad_input:
+        return "bad_input";
+    }
+    return "?";
+}
+
+namespace {
+
+void check_level(slong n, slong prec)
+{
+    if (n < 0 || n > 40)
+        throw std::invalid_argument("superstable: level n must be in 0..40");
+    if (prec < 2)
+        throw std::invalid_argument("superstable: prec must be >= 2");
+}
+
+// The midpoint of a ball as an exact ball (radius 0).
+ball::Ball mid_of(const ball::Ball& b)
+{
+    ball::Ball m;
+    arb_get_mid_arb(m.get(), b.get());
+    return m;
+}
+
+bool mid_in_domain(arb_srcptr x, double lo, double hi)
+{
+    double v = arf_get_d(arb_midref(x), ARF_RND_NEAR);
+    double slack = 1e-9 * (hi - lo);
+    return v >= lo - slack && v <= hi + slack;
+}
+
+std::string orbit_problem(std::uint64_t step, arb_srcptr x, const Family& f)
+{
+    if (!arb_is_finite(x))
+        return "the orbit of c became non-finite at step " + std::to_string(step);
+    return "the orbit of c left [" + std::to_string(f.x_lo) + ", " + std::to_string(f.x_hi) +
+           "] at step " + std::to_string(step) + " (x ~ " +
+           std::to_string(arf_get_d(arb_midref(x), ARF_RND_NEAR)) + ")";
+}
+
+} // namespace
+
+ReturnMap superstable_return(const Family& family, const ball::Ball& c, slong n,
+                             const ball::Ball& mu, slong prec)
+{
+    check_level(n, prec);
+    ReturnMap out;
+    const std::uint64_t N = std::uint64_t(1) << n;
+    const std::uint64_t half_at = N / 2;
+    ball::Ball x = c;
+    ball::Ball y; // dx_k/dmu, zero at k = 0 (c does not depend on mu)
+    ball::Ball t, s, fx, fm;
+    arb_ptr X = x.get();
+    arb_ptr Y = y.get();
+    arb_srcptr M = mu.get();
+    std::unique_ptr<JetEvaluator> ev;
+    if (!family.fast_quadratic)
+        ev = std::make_unique<JetEvaluator>(family.expr, 1, prec);
+    for (std::uint64_t k = 0; k < N; ++k) {
+        if (family.fast_quadratic) {
+            // f = 1 - mu x^2:  y' = f_mu + f_x y = -x^2 - 2 mu x y = -x (x + 2 mu y).
+            arb_mul(t.get(), M, Y, prec);
+            arb_mul_2exp_si(t.get(), t.get(), 1);
+            arb_add(t.get(), t.get(), X, prec);
+            arb_mul(t.get(), t.get(), X, prec);
+            arb_neg(Y, t.get());
+            arb_sqr(s.get(), X, prec);
+            arb_mul(s.get(), s.get(), M, prec);
+            arb_neg(s.get(), s.get());
+            arb_add_ui(X, s.get(), 1, prec);
+        } else {
+            ev->evaluate_centered(s.get(), fx.get(), fm.get(), nullptr, nullptr, X, M);
+            // y_{k+1} = f_mu(x_k) + f_x(x_k) y_k
+            arb_mul(t.get(), fx.get(), Y, prec);
+            arb_add(Y, t.get(), fm.get(), prec);
+            arb_swap(X, s.get());
+        }
+        if (!mid_in_domain(X, family.x_lo, family.x_hi) ||
+            ((k & 0xffff) == 0 && !arb_is_finite(X))) {
+            out.problem = orbit_problem(k + 1, X, family);
+            return out;
+        }
+        if (k + 1 == half_at && n >= 1)
+            arb_sub(out.half.get(), X, c.get(), prec);
+    }
+    if (!arb_is_finite(X) || !arb_is_finite(Y)) {
+        out.problem = orbit_problem(N, X, family);
+        return out;
+    }
+    arb_sub(out.F.get(), X, c.get(), prec);
+    out.dF = y;
+    out.ok = true;
+    return out;
+}
+
+SuperstableCertificate certify_superstable(const Family& family, const ball::Ball& c, slong n,
+                                           const ball::Ball& m, const ReturnMap& at_center,
+                                           const ball::Ball& rho, slong prec)
+{
+    check_level(n, prec);
+    SuperstableCertificate cert;
+    cert.prec = prec;
+    arb_indeterminate(cert.mu.get());
+    arb_indeterminate(cert.half.get());
+    if (!arb_is_exact(m.get()))
+        throw std::invalid_argument("certify_superstable: the centre m must be an exact number");
+    if (!at_center.ok) {
+        cert.problem = at_center.problem;
+        return cert;
+    }
+    // X = [m - rho, m + rho]
+    mag_t r;
+    mag_init(r);
+    arb_get_mag(r, rho.get());
+    arb_set(cert.box.get(), m.get());
+    mag_set(arb_radref(cert.box.get()), r);
+    ball::Ball dX; // X - m = [0 +/- rho]
+    mag_set(arb_radref(dX.get()), r);
+    mag_clear(r);
+    ReturnMap at_box = superstable_return(family, c, n, cert.box, prec);
+    if (!at_box.ok) {
+        cert.problem = "box orbit: " + at_box.problem;
+        return cert;
+    }
+    cert.residual = at_center.F;
+    cert.slope = at_box.dF;
+    // Y = 1 / mid(F'(m)), rounded to an exact number (any Y is allowed by the theorem).
+    ball::Ball Y = mid_of(at_center.dF);
+    if (arb_is_zero(Y.get())) {
+        cert.problem = "F_n'(m) has midpoint 0";
+        return cert;
+    }
+    arb_inv(Y.get(), Y.get(), prec);
+    Y = mid_of(Y);
+    // K = m - Y F(m) + (1 - Y F'(X)) (X - m)
+    ball::Ball K, t;
+    arb_mul(t.get(), Y.get(), at_center.F.get(), prec);
+    arb_sub(K.get(), m.get(), t.get(), prec);
+    arb_mul(t.get(), Y.get(), at_box.dF.get(), prec);
+    arb_sub_ui(t.get(), t.get(), 1, prec);
+    arb_neg(t.get(), t.get());
+    arb_mul(t.get(), t.get(), dX.get(), prec);
+    arb_add(K.get(), K.get(), t.get(), prec);
+    cert.krawczyk = K;
+    if (!arb_contains_interior(cert.box.get(), K.get())) {
+        cert.problem = "Krawczyk test failed: K(X) is not inside X";
+        return cert;
+    }
+    cert.status = Status::certified;
+    cert.mu = K;
+    cert.half = at_box.half;
+    cert.exact_period = n == 0 || !arb_contains_zero(at_box.half.get());
+    return cert;
+}
+
+SuperstableCertificate certify_superstable(const Family& family, const ball::Ball& c, slong n,
+                                           const ball::Ball& m, const ball::Ball& rho, slong prec)
+{
+    check_level(n, prec);
+    ReturnMap at_center = superstable_return(family, c, n, m, prec);
+    return certify_superstable(family, c, n, m, at_center, rho, prec);
+}
+
+SuperstableLevel locate_superstable(const Family& family, const ball::Ball& c, slong n,
+                                    const ball::Ball& guess, double spacing, int max_iter,
+                                    slong prec)
+{
+    check_level(n, prec);
+    if (!(spacing > 0) || !std::isfinite(spacing))
+        throw std::invalid_argument("locate_superstable: spacing must be positive");
+    SuperstableLevel out;
+    out.prec = prec;
+    const slong target = target_bits_below_spacing;
+    const double close_enough = std::ldexp(spacing, -20);
+    const double want_radius = std::ldexp(spacing, -static_cast<int>(target));
+    const double noise_cap = std::ldexp(spacing, -static_cast<int>(target) - 4);
+    ball::Ball g = mid_of(guess);
+    ball::Ball step;
+    for (int it = 0; it < max_iter; ++it) {
+        ReturnMap R = superstable_return(family, c, n, g, prec);
+        ++out.newton_passes;
+        if (!R.ok) {
+            out.problem = R.problem;
+            return out;
+        }
+        out.half_approx = mid_of(R.half);
+        arb_div(step.get(), R.F.get(), R.dF.get(), prec);
+        if (!step.is_finite()) {
+            out.problem = "the mu-derivative of f^(2^n)(c) contains 0 (singular Newton step)";
+            return out;
+        }
+        if (step.radius_upper() > noise_cap) {
+            out.problem = "precision: rounding noise in the Newton step (" +
+                          std::to_string(step.radius_upper()) + ") is above spacing * 2^-" +
+                          std::to_string(target + 4) + " at " + std::to_string(prec) + " bits";
+            return out;
+        }
+        const double sd = std::fabs(step.approx_double());
+        if (sd > close_enough) {
+            arb_sub(g.get(), g.get(), mid_of(step).get(), prec);
+            g = mid_of(g);
+            continue;
+        }
+        // Close: prove. rho covers the Newton step with a margin, and is never 0.
+        ball::Ball rho(4 * (sd + step.radius_upper()) +
+                       std::ldexp(spacing, -static_cast<int>(target) - 8));
+        SuperstableCertificate cert = certify_superstable(family, c, n, g, R, rho, prec);
+        ++out.newton_passes;
+        if (cert.status != Status::certified) {
+            arb_mul_2exp_si(rho.get(), rho.get(), 8);
+            cert = certify_superstable(family, c, n, g, R, rho, prec);
+            ++out.newton_passes;
+        }
+        if (cert.status != Status::certified) {
+            out.ok = true; // a zero was located, but not proved
+            out.mu_approx = mid_of(g);
+            arb_sub(out.mu_approx.get(), out.mu_approx.get(), mid_of(step).get(), prec);
+            out.mu_approx = mid_of(out.mu_approx);
+            out.problem = cert.problem;
+            out.cert = cert;
+            return out;
+        }
+        out.cert = cert;
+        out.mu_approx = mid_of(cert.mu);
+        if (cert.mu.radius_upper() <= want_radius) {
+            out.ok = true;
+            return out;
+        }
+        g = out.mu_approx; // tighten: Newton/Krawczyk again from the centre of K
+    }
+    if (out.cert.status == Status::certified) {
+        out.ok = true; // proved, but the radius stayed above the target
+        out.problem = "certified radius above spacing * 2^-" + std::to_string(target);
+        return out;
+    }
+    out.problem = "Newton in mu did not converge in " + std::to_string(max_iter) + " steps";
+    out.ok = false;
+    return out;
+}
+
+} // namespace renorm::cascade
