@@ -45,6 +45,8 @@ std::string fmt_radius(const ball::Ball& b)
 
 std::string digits_of(const ball::Ball& b, slong max_digits)
 {
+    if (arb_is_zero(b.get()))
+        return "0";
     slong count = 0;
     std::string s = ball::determined_digits(b, max_digits, &count);
     if (count == 0)

@@ -109,41 +109,6 @@ void add_ratios(CascadeResult& res, slong prec)
     }
 }
 
-struct Located {
-    SuperstableLevel level;
-    bool hard_failure = false;
-    ball::Ball c;
-};
-
-Located locate_with_escalation(const Family& family, int n, const ball::Ball& guess,
-                               double spacing, const CascadeOptions& o)
-{
-    Located out;
-    auto esc = ball::with_increasing_prec(level_prec(o, n), o.max_prec, [&](slong p) {
-        CriticalPoint cp = critical_point(family, p);
-        if (!cp.ok) {
-            out.level = SuperstableLevel{};
-            out.level.problem = cp.problem;
-            out.hard_failure = true;
-            return true;
-        }
-        out.c = cp.c;
-        out.level = locate_superstable(family, cp.c, n, guess, spacing, o.max_newton, p);
-        if (!out.level.ok) {
-            if (out.level.problem.rfind("precision", 0) == 0)
-                return false;
-            out.hard_failure = true;
-            return true;
-        }
-        return out.level.cert.status == Status::certified;
-    });
-    if (!esc.succeeded && !out.hard_failure && !out.level.ok) {
-        out.hard_failure = true;
-        out.level.problem += " (precision cap " + std::to_string(o.max_prec) + " bits reached)";
-    }
-    return out;
-}
-
 void check_options(const CascadeOptions& o)
 {
     if (o.levels < 1 || o.levels > max_cascade_level)
@@ -154,9 +119,82 @@ void check_options(const CascadeOptions& o)
         throw std::invalid_argument("bad precision settings");
 }
 
+// Phase A of a level: Newton at an escalating precision (doubling while rounding noise is
+// too large).
+struct PhaseA {
+    SuperstableNewton newton;
+    ball::Ball c;
+    std::string problem;
+    double seconds = 0;
+};
+
+PhaseA locate_phase(const Family& family, int n, const ball::Ball& guess, double spacing,
+                    const CascadeOptions& o)
+{
+    auto t0 = Clock::now();
+    PhaseA a;
+    bool hard = false;
+    ball::with_increasing_prec(level_prec(o, n), o.max_prec, [&](slong p) {
+        CriticalPoint cp = critical_point(family, p);
+        if (!cp.ok) {
+            a.problem = cp.problem;
+            hard = true;
+            return true;
+        }
+        a.c = cp.c;
+        a.newton = approx_superstable(family, cp.c, n, guess, spacing, o.max_newton, p);
+        if (!a.newton.ok && !a.newton.precision_limited) {
+            hard = true;
+            return true;
+        }
+        return a.newton.ok;
+    });
+    if (!a.newton.ok) {
+        if (a.problem.empty())
+            a.problem = a.newton.problem;
+        if (!hard && a.newton.precision_limited)
+            a.problem += " (precision cap " + std::to_string(o.max_prec) + " bits reached)";
+    }
+    a.seconds = seconds_since(t0);
+    return a;
+}
+
+// Phase B: the proof, doubling the precision (and redoing Newton there) while it fails.
+struct PhaseB {
+    SuperstableLevel level;
+    double seconds = 0;
+};
+
+PhaseB certify_phase(const Family& family, int n, const PhaseA& a, double spacing,
+                     const CascadeOptions& o)
+{
+    auto t0 = Clock::now();
+    PhaseB b;
+    SuperstableNewton newton = a.newton;
+    ball::Ball c = a.c;
+    slong p = newton.prec;
+    for (;;) {
+        b.level = certify_superstable_from(family, c, n, newton, spacing, p);
+        if (b.level.cert.status == Status::certified || 2 * p > o.max_prec)
+            break;
+        p *= 2;
+        CriticalPoint cp = critical_point(family, p);
+        if (!cp.ok)
+            break;
+        c = cp.c;
+        SuperstableNewton again =
+            approx_superstable(family, c, n, newton.improved, spacing, o.max_newton, p);
+        if (!again.ok)
+            break;
+        newton = std::move(again);
+    }
+    b.seconds = seconds_since(t0);
+    return b;
+}
+
 // Superstable parameters mu_first..mu_L, each located by Newton and certified by Krawczyk.
-// With two threads the certificate of level n is finished while level n+1 is located: the
-// guess for n+1 only needs the approximate mu_n.
+// With two threads the proof of level n (phase B) runs while level n+1 is located (phase A):
+// the guess for n+1 only needs the Newton value of mu_n.
 void run_superstable(const Family& family, const CascadeOptions& o, CascadeResult& res,
                      const std::function<void(const CascadeLevel&)>& on_level)
 {
@@ -187,22 +225,71 @@ void run_superstable(const Family& family, const CascadeOptions& o, CascadeResul
         res.failure = "the family has no superstable cycle of period 1; ask for more levels";
         return;
     }
-    std::vector<double> approx; // mid of mu_n, n = first..
+
+    struct Pending {
+        int n;
+        std::future<PhaseB> fut;
+        PhaseA a;
+    };
+    std::optional<Pending> pending;
+    // Waits for the proof of the pending level and appends it to the result.
+    auto finish_pending = [&]() {
+        if (!pending)
+            return;
+        PhaseB b = pending->fut.get();
+        const int n = pending->n;
+        CascadeLevel lev;
+        lev.n = n;
+        lev.period = std::uint64_t(1) << n;
+        lev.prec = b.level.prec;
+        lev.seconds = pending->a.seconds + b.seconds;
+        const SuperstableCertificate& cert = b.level.cert;
+        if (cert.status == Status::certified && cert.exact_period) {
+            lev.status = Status::certified;
+            lev.mu = cert.mu;
+            if (n >= 1) {
+                lev.d = cert.half;
+                lev.has_d = true;
+            }
+            if (!b.level.problem.empty())
+                lev.note = b.level.problem;
+        } else {
+            lev.status = Status::not_certified;
+            lev.mu = b.level.ok ? b.level.mu_approx : pending->a.newton.improved;
+            if (n >= 1) {
+                lev.d = b.level.ok ? b.level.half_approx : mid_of(pending->a.newton.at_center.half);
+                lev.has_d = true;
+            }
+            lev.note = cert.status == Status::certified
+                           ? "not certified: the period 2^n is not proved (d_n may be 0)"
+                           : "not certified: " + b.level.problem;
+        }
+        res.levels.push_back(lev);
+        add_ratios(res, std::max<slong>(lev.prec, 128));
+        if (on_level)
+            on_level(res.levels.back());
+        pending.reset();
+    };
+
+    std::vector<ball::Ball> approx; // Newton values of mu_n, n = first..
+    const slong gprec = level_prec(o, o.levels) + 64;
     for (int n = first; n <= o.levels; ++n) {
-        auto t0 = Clock::now();
-        double guess = 0, spacing = 0;
+        ball::Ball guess;
+        double spacing = 0;
         const std::size_t k = approx.size();
         if (n == first) {
-            guess = 0.5 * (br->first + br->second);
+            guess = ball::Ball(0.5 * (br->first + br->second));
             spacing = (family.mu_hi - family.mu_lo) / 4;
         } else if (k < 4) {
-            double prev = approx[k - 1];
-            double width = k == 1 ? family.mu_hi - prev : 1.5 * std::fabs(prev - approx[k - 2]);
-            double dir = k == 1 ? 1.0 : (prev > approx[k - 2] ? 1.0 : -1.0);
+            double prev = approx[k - 1].approx_double();
+            double width = k == 1 ? family.mu_hi - prev
+                                  : 1.5 * std::fabs(prev - approx[k - 2].approx_double());
+            double dir = k == 1 ? 1.0 : (prev > approx[k - 2].approx_double() ? 1.0 : -1.0);
             double lo = prev, hi = prev + dir * width;
             auto b = dir > 0 ? scan_first_root(family, cp.c, n, lo, hi, 600)
                              : scan_first_root(family, cp.c, n, hi, lo, 600);
             if (!b) {
+                finish_pending();
                 res.failed = true;
                 res.failed_level = n;
                 res.failure = "level " + std::to_string(n) +
@@ -210,57 +297,37 @@ void run_superstable(const Family& family, const CascadeOptions& o, CascadeResul
                               std::to_string(n - 1);
                 break;
             }
-            guess = 0.5 * (b->first + b->second);
-            spacing = std::fabs(guess - prev);
+            guess = ball::Ball(0.5 * (b->first + b->second));
+            spacing = std::fabs(guess.approx_double() - prev);
         } else {
-            double prev = approx[k - 1], prev2 = approx[k - 2];
-            double d = res.levels.back().has_delta ? res.levels.back().delta.approx_double() : 4.0;
-            guess = prev + (prev - prev2) / d;
-            spacing = std::fabs(guess - prev);
+            // mu_n ~ mu_{n-1} + (mu_{n-1} - mu_{n-2}) / delta_{n-1}, in ball arithmetic on the
+            // exact Newton values (a double would cap the guess at 16 digits).
+            ball::Ball d1, d2, r, t;
+            arb_sub(d1.get(), approx[k - 1].get(), approx[k - 2].get(), gprec);
+            arb_sub(d2.get(), approx[k - 2].get(), approx[k - 3].get(), gprec);
+            arb_div(r.get(), d2.get(), d1.get(), gprec); // delta_{n-1}
+            arb_div(t.get(), d1.get(), r.get(), gprec);
+            arb_add(guess.get(), approx[k - 1].get(), t.get(), gprec);
+            guess = mid_of(guess);
+            spacing = std::fabs(t.approx_double());
         }
-        // Locate (and certify) at an automatically chosen, escalating precision.
-        Located L = locate_with_escalation(family, n, ball::Ball(guess), spacing, o);
-        // The level's guess can be refined with the exact midpoint (more than double digits).
-        CascadeLevel lev;
-        lev.n = n;
-        lev.period = std::uint64_t(1) << n;
-        lev.seconds = seconds_since(t0);
-        lev.prec = L.level.prec;
-        if (!L.level.ok) {
+        PhaseA a = locate_phase(family, n, guess, spacing, o);
+        if (!a.newton.ok) {
+            finish_pending();
             res.failed = true;
             res.failed_level = n;
-            res.failure = "level " + std::to_string(n) + ": " + L.level.problem;
+            res.failure = "level " + std::to_string(n) + ": " + a.problem;
             break;
         }
-        const SuperstableCertificate& cert = L.level.cert;
-        if (cert.status == Status::certified) {
-            if (!cert.exact_period) {
-                res.failed = true;
-                res.failed_level = n;
-                res.failure = "level " + std::to_string(n) +
-                              ": the zero found has c on a cycle of period < 2^n";
-                break;
-            }
-            lev.status = Status::certified;
-            lev.mu = cert.mu;
-            if (n >= 1) {
-                lev.d = cert.half;
-                lev.has_d = true;
-            }
-        } else {
-            lev.status = Status::not_certified;
-            lev.mu = L.level.mu_approx;
-            if (n >= 1) {
-                lev.d = L.level.half_approx;
-                lev.has_d = true;
-            }
-            lev.note = "not certified: " + L.level.problem;
-        }
-        const double m = lev.mu.approx_double();
+        const ball::Ball& m = a.newton.improved;
         if (k >= 2) {
             // Sanity: the cascade moves on in the same direction with a ratio above 1.
-            double s1 = approx[k - 1] - approx[k - 2], s2 = m - approx[k - 1];
+            double s1 = approx[k - 1].approx_double() - approx[k - 2].approx_double();
+            ball::Ball s2b;
+            arb_sub(s2b.get(), m.get(), approx[k - 1].get(), gprec);
+            double s2 = s2b.approx_double();
             if (!(s1 * s2 > 0) || !(std::fabs(s1 / s2) > 1.2) || !(std::fabs(s1 / s2) < 1000)) {
+                finish_pending();
                 res.failed = true;
                 res.failed_level = n;
                 res.failure = "level " + std::to_string(n) +
@@ -270,12 +337,19 @@ void run_superstable(const Family& family, const CascadeOptions& o, CascadeResul
             }
         }
         approx.push_back(m);
-        res.levels.push_back(lev);
-        add_ratios(res, std::max<slong>(lev.prec, 128));
-        res.levels.back().seconds = seconds_since(t0);
-        if (on_level)
-            on_level(res.levels.back());
+        finish_pending(); // at most one proof in flight
+        auto task = [&family, n, a, spacing, o]() { return certify_phase(family, n, a, spacing, o); };
+        Pending p{n, {}, a};
+        if (o.threads == 2) {
+            p.fut = std::async(std::launch::async, task);
+        } else {
+            std::promise<PhaseB> pr;
+            pr.set_value(task());
+            p.fut = pr.get_future();
+        }
+        pending = std::move(p);
     }
+    finish_pending();
 }
 
 // Period-doubling parameters b_first..b_L (estimates).

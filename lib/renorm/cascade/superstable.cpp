@@ -2,6 +2,8 @@
 #include <renorm/cascade/superstable.hpp>
 
 #include <cmath>
+#include <cstdio>
+#include <cstdlib>
 #include <cstdint>
 #include <memory>
 #include <stdexcept>
@@ -57,13 +59,14 @@ std::string orbit_problem(std::uint64_t step, arb_srcptr x, const Family& f)
 
 } // namespace
 
-ReturnMap superstable_return(const Family& family, const ball::Ball& c, slong n,
-                             const ball::Ball& mu, slong prec)
+namespace {
+
+// The orbit x_0 = c, x_{k+1} = f_mu(x_k) for `steps` steps with dx_k/dmu; records x_{half_at} - c.
+ReturnMap run_orbit(const Family& family, const ball::Ball& c, std::uint64_t steps,
+                    std::uint64_t half_at, const ball::Ball& mu, slong prec)
 {
-    check_level(n, prec);
     ReturnMap out;
-    const std::uint64_t N = std::uint64_t(1) << n;
-    const std::uint64_t half_at = N / 2;
+    const std::uint64_t N = steps;
     ball::Ball x = c;
     ball::Ball y; // dx_k/dmu, zero at k = 0 (c does not depend on mu)
     ball::Ball t, s, fx, fm;
@@ -97,7 +100,7 @@ ReturnMap superstable_return(const Family& family, const ball::Ball& c, slong n,
             out.problem = orbit_problem(k + 1, X, family);
             return out;
         }
-        if (k + 1 == half_at && n >= 1)
+        if (k + 1 == half_at)
             arb_sub(out.half.get(), X, c.get(), prec);
     }
     if (!arb_is_finite(X) || !arb_is_finite(Y)) {
@@ -108,6 +111,33 @@ ReturnMap superstable_return(const Family& family, const ball::Ball& c, slong n,
     out.dF = y;
     out.ok = true;
     return out;
+}
+
+} // namespace
+
+ReturnMap superstable_return(const Family& family, const ball::Ball& c, slong n,
+                             const ball::Ball& mu, slong prec)
+{
+    check_level(n, prec);
+    const std::uint64_t N = std::uint64_t(1) << n;
+    return run_orbit(family, c, N, n >= 1 ? N / 2 : 0, mu, prec);
+}
+
+ball::Ball superstable_half(const Family& family, const ball::Ball& c, slong n,
+                            const ball::Ball& mu, slong prec)
+{
+    check_level(n, prec);
+    ball::Ball out;
+    if (n < 1) {
+        arb_indeterminate(out.get());
+        return out;
+    }
+    ReturnMap R = run_orbit(family, c, std::uint64_t(1) << (n - 1), 0, mu, prec);
+    if (!R.ok) {
+        arb_indeterminate(out.get());
+        return out;
+    }
+    return R.F;
 }
 
 SuperstableCertificate certify_superstable(const Family& family, const ball::Ball& c, slong n,
@@ -178,80 +208,137 @@ SuperstableCertificate certify_superstable(const Family& family, const ball::Bal
     return certify_superstable(family, c, n, m, at_center, rho, prec);
 }
 
-SuperstableLevel locate_superstable(const Family& family, const ball::Ball& c, slong n,
-                                    const ball::Ball& guess, double spacing, int max_iter,
-                                    slong prec)
+SuperstableNewton approx_superstable(const Family& family, const ball::Ball& c, slong n,
+                                     const ball::Ball& guess, double spacing, int max_iter,
+                                     slong prec)
 {
     check_level(n, prec);
     if (!(spacing > 0) || !std::isfinite(spacing))
-        throw std::invalid_argument("locate_superstable: spacing must be positive");
-    SuperstableLevel out;
+        throw std::invalid_argument("approx_superstable: spacing must be positive");
+    SuperstableNewton out;
     out.prec = prec;
-    const slong target = target_bits_below_spacing;
-    const double close_enough = std::ldexp(spacing, -20);
-    const double want_radius = std::ldexp(spacing, -static_cast<int>(target));
-    const double noise_cap = std::ldexp(spacing, -static_cast<int>(target) - 4);
+    const int target = static_cast<int>(target_bits_below_spacing);
+    // Stop when the Krawczyk box built on the step will give a radius ~ 16 (step/s)^2 s below
+    // the target: step <= s 2^-(target/2 + 4).
+    const double close_enough = std::ldexp(spacing, -(target / 2 + 4));
+    const double noise_cap = std::ldexp(spacing, -target - 4);
     ball::Ball g = mid_of(guess);
-    ball::Ball step;
     for (int it = 0; it < max_iter; ++it) {
         ReturnMap R = superstable_return(family, c, n, g, prec);
-        ++out.newton_passes;
+        ++out.passes;
         if (!R.ok) {
             out.problem = R.problem;
             return out;
         }
-        out.half_approx = mid_of(R.half);
+        ball::Ball step;
         arb_div(step.get(), R.F.get(), R.dF.get(), prec);
         if (!step.is_finite()) {
             out.problem = "the mu-derivative of f^(2^n)(c) contains 0 (singular Newton step)";
             return out;
         }
         if (step.radius_upper() > noise_cap) {
+            out.precision_limited = true;
             out.problem = "precision: rounding noise in the Newton step (" +
                           std::to_string(step.radius_upper()) + ") is above spacing * 2^-" +
                           std::to_string(target + 4) + " at " + std::to_string(prec) + " bits";
             return out;
         }
         const double sd = std::fabs(step.approx_double());
-        if (sd > close_enough) {
-            arb_sub(g.get(), g.get(), mid_of(step).get(), prec);
-            g = mid_of(g);
-            continue;
+        if (std::getenv("RENORM_CASCADE_TRACE"))
+            std::fprintf(stderr, "n=%ld prec=%ld it=%d step=%.3e rad=%.3e spacing=%.3e\n", (long)n,
+                         (long)prec, it, sd, step.radius_upper(), spacing);
+        ball::Ball next;
+        arb_sub(next.get(), g.get(), mid_of(step).get(), prec);
+        next = mid_of(next);
+        if (sd <= close_enough) {
+            out.ok = true;
+            out.center = g;
+            out.at_center = std::move(R);
+            out.step = step;
+            out.improved = next;
+            return out;
         }
-        // Close: prove. rho covers the Newton step with a margin, and is never 0.
-        ball::Ball rho(4 * (sd + step.radius_upper()) +
-                       std::ldexp(spacing, -static_cast<int>(target) - 8));
-        SuperstableCertificate cert = certify_superstable(family, c, n, g, R, rho, prec);
-        ++out.newton_passes;
+        g = next;
+    }
+    out.problem = "Newton in mu did not converge in " + std::to_string(max_iter) + " steps";
+    return out;
+}
+
+SuperstableLevel certify_superstable_from(const Family& family, const ball::Ball& c, slong n,
+                                          const SuperstableNewton& newton, double spacing,
+                                          slong prec)
+{
+    check_level(n, prec);
+    SuperstableLevel out;
+    out.prec = prec;
+    if (!newton.ok) {
+        out.problem = newton.problem;
+        return out;
+    }
+    out.ok = true;
+    out.mu_approx = newton.improved;
+    out.half_approx = mid_of(newton.at_center.half);
+    const int target = static_cast<int>(target_bits_below_spacing);
+    const double want_radius = std::ldexp(spacing, -target);
+    ball::Ball center = newton.center;
+    ReturnMap at_center = newton.at_center;
+    ball::Ball step = newton.step;
+    for (int round = 0; round < 4; ++round) {
+        const double sd = std::fabs(step.approx_double());
+        // rho covers the Newton step with a margin, and is never 0.
+        ball::Ball rho(4 * (sd + step.radius_upper()) + std::ldexp(spacing, -target - 8));
+        SuperstableCertificate cert = certify_superstable(family, c, n, center, at_center, rho, prec);
+        ++out.passes;
+        if (std::getenv("RENORM_CASCADE_TRACE"))
+            std::fprintf(stderr, "  n=%ld cert %s rho=%.3e K rad=%.3e\n", (long)n,
+                         to_string(cert.status), rho.approx_double(), cert.krawczyk.radius_upper());
         if (cert.status != Status::certified) {
             arb_mul_2exp_si(rho.get(), rho.get(), 8);
-            cert = certify_superstable(family, c, n, g, R, rho, prec);
-            ++out.newton_passes;
+            cert = certify_superstable(family, c, n, center, at_center, rho, prec);
+            ++out.passes;
         }
         if (cert.status != Status::certified) {
-            out.ok = true; // a zero was located, but not proved
-            out.mu_approx = mid_of(g);
-            arb_sub(out.mu_approx.get(), out.mu_approx.get(), mid_of(step).get(), prec);
-            out.mu_approx = mid_of(out.mu_approx);
             out.problem = cert.problem;
             out.cert = cert;
             return out;
         }
         out.cert = cert;
         out.mu_approx = mid_of(cert.mu);
-        if (cert.mu.radius_upper() <= want_radius) {
-            out.ok = true;
+        if (cert.mu.radius_upper() <= want_radius || round == 3) {
+            if (n >= 1) {
+                // d_n over the (small) enclosure K: tighter than over the box X.
+                ball::Ball h = superstable_half(family, c, n, cert.mu, prec);
+                out.passes += 1; // half a pass, counted as one
+                ball::Ball both;
+                if (h.is_finite() && arb_intersection(both.get(), h.get(), out.cert.half.get(), prec))
+                    out.cert.half = both;
+                out.half_approx = mid_of(out.cert.half);
+                out.cert.exact_period = !arb_contains_zero(out.cert.half.get());
+            }
+            if (cert.mu.radius_upper() > want_radius)
+                out.problem = "certified radius above spacing * 2^-" + std::to_string(target);
             return out;
         }
-        g = out.mu_approx; // tighten: Newton/Krawczyk again from the centre of K
+        // Tighten: a new centre at the middle of K, and its orbit.
+        center = out.mu_approx;
+        at_center = superstable_return(family, c, n, center, prec);
+        ++out.passes;
+        if (!at_center.ok) {
+            out.problem = at_center.problem;
+            return out;
+        }
+        arb_div(step.get(), at_center.F.get(), at_center.dF.get(), prec);
     }
-    if (out.cert.status == Status::certified) {
-        out.ok = true; // proved, but the radius stayed above the target
-        out.problem = "certified radius above spacing * 2^-" + std::to_string(target);
-        return out;
-    }
-    out.problem = "Newton in mu did not converge in " + std::to_string(max_iter) + " steps";
-    out.ok = false;
+    return out;
+}
+
+SuperstableLevel locate_superstable(const Family& family, const ball::Ball& c, slong n,
+                                    const ball::Ball& guess, double spacing, int max_iter,
+                                    slong prec)
+{
+    SuperstableNewton newton = approx_superstable(family, c, n, guess, spacing, max_iter, prec);
+    SuperstableLevel out = certify_superstable_from(family, c, n, newton, spacing, prec);
+    out.passes += newton.passes;
     return out;
 }
 

@@ -66,28 +66,59 @@ SuperstableCertificate certify_superstable(const Family& family, const ball::Bal
 SuperstableCertificate certify_superstable(const Family& family, const ball::Ball& c, slong n,
                                            const ball::Ball& m, const ball::Ball& rho, slong prec);
 
-/// Result of locating and proving mu_n near a guess.
-struct SuperstableLevel {
-    bool ok = false;           ///< a zero was located (certified or not)
-    std::string problem;       ///< why not ok / why not certified
-    SuperstableCertificate cert;
-    ball::Ball mu_approx;      ///< best approximation (exact midpoint); no guarantee
-    ball::Ball half_approx;    ///< x_{N/2} - c at the last Newton point; no guarantee
-    slong prec = 0;            ///< the precision that finished the level
-    int newton_passes = 0;     ///< orbit passes spent (point and box)
-};
+/// Encloses x_{2^(n-1)} - c for every mu in the ball `mu` (n >= 1): the signed distance d_n
+/// from c to the point of the cycle half a period away. NaN for n = 0 or an orbit failure.
+/// Precision: `prec` bits.
+ball::Ball superstable_half(const Family& family, const ball::Ball& c, slong n,
+                            const ball::Ball& mu, slong prec);
 
-/// Bits of the certified radius below the spacing |mu_n - mu_{n-1}| that locate_superstable aims for.
+/// Bits of the certified radius below the spacing |mu_n - mu_{n-1}| that the level aims for.
 inline slong target_bits_below_spacing = 90;
 
-/// Locates mu_n by Newton in mu from `guess` (each step one orbit pass), then certifies it with
-/// certify_superstable and tightens until the radius is below spacing * 2^-target_bits.
-/// `spacing` (> 0) is the expected |mu_n - mu_{n-1}|.
-/// No guarantee for mu_approx; only `cert` carries a proof (status certified) when it closed.
-/// Returns ok == false when Newton fails (orbit failure, zero derivative, no convergence in
-/// `max_iter` steps) or rounding noise at `prec` is too large (problem says "precision").
-SuperstableLevel locate_superstable(const Family& family, const ball::Ball& c,
-                                    slong n, const ball::Ball& guess, double spacing,
-                                    int max_iter, slong prec);
+/// Newton in mu for F_n(mu) = 0 from `guess`, one orbit pass per step, stopped when the step is
+/// below spacing * 2^-(target/2 + 4), i.e. when a Krawczyk box built on the step will meet the
+/// target radius. No guarantee.
+struct SuperstableNewton {
+    bool ok = false;
+    bool precision_limited = false; ///< rounding noise too large at this precision
+    std::string problem;
+    ball::Ball center;     ///< the last Newton point (exact)
+    ReturnMap at_center;   ///< F_n and F_n' enclosed at `center`
+    ball::Ball step;       ///< F_n(center) / F_n'(center)
+    ball::Ball improved;   ///< center - step (exact midpoint)
+    int passes = 0;
+    slong prec = 0;
+};
+/// `spacing` (> 0) is the expected |mu_n - mu_{n-1}|. Returns ok == false when an orbit fails,
+/// the derivative contains 0, the noise is too large (precision_limited) or `max_iter` steps
+/// do not converge. No guarantee.
+SuperstableNewton approx_superstable(const Family& family, const ball::Ball& c, slong n,
+                                     const ball::Ball& guess, double spacing, int max_iter,
+                                     slong prec);
+
+/// A located and (when possible) proved superstable parameter.
+struct SuperstableLevel {
+    bool ok = false;           ///< a zero was located (certified or not)
+    std::string problem;       ///< why not ok / why not certified / why the radius is wide
+    SuperstableCertificate cert; ///< the proof: only this carries a guarantee
+    ball::Ball mu_approx;      ///< best approximation (exact midpoint); no guarantee
+    ball::Ball half_approx;    ///< midpoint of d_n; no guarantee
+    slong prec = 0;            ///< the precision that finished the level
+    int passes = 0;            ///< orbit passes spent
+};
+
+/// Certifies the zero that approx_superstable found: certify_superstable on a box of radius
+/// 4 |step| around the Newton point (256 times larger if that fails), then, while the radius
+/// of K is above spacing * 2^-target_bits_below_spacing, again around the middle of K (at most
+/// four rounds). Finally encloses d_n over K (superstable_half) and checks that it excludes 0
+/// (exact period 2^n). The guarantee is in `cert` (status certified); see certify_superstable.
+SuperstableLevel certify_superstable_from(const Family& family, const ball::Ball& c, slong n,
+                                          const SuperstableNewton& newton, double spacing,
+                                          slong prec);
+
+/// approx_superstable followed by certify_superstable_from, at one precision.
+SuperstableLevel locate_superstable(const Family& family, const ball::Ball& c, slong n,
+                                    const ball::Ball& guess, double spacing, int max_iter,
+                                    slong prec);
 
 } // namespace renorm::cascade
