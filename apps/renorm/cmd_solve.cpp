@@ -1,9 +1,161 @@
-// Placeholder while the solve command is being written; replaced in this same series of commits.
+// renorm solve: estimates of alpha, delta and the next eigenvalues for one order z.
 #include "commands.hpp"
+#include "progress.hpp"
+
+#include <renorm/io/atomic_file.hpp>
+#include <renorm/solve/solve.hpp>
+#include <renorm/version.hpp>
+
+#include <nlohmann/json.hpp>
+
+#include <algorithm>
+#include <cmath>
+#include <iostream>
+#include <memory>
+#include <sstream>
+#include <unistd.h>
+
 namespace renorm::app {
+
+namespace {
+
+struct SolveArgs {
+    std::string order = "2";
+    slong digits = 100;
+    slong eigenvalues = 4;
+    bool json = false;
+    bool quiet = false;
+    std::string coefficients;
+};
+
+std::string eigen_text(const solve::EigenvalueReport& e)
+{
+    if (e.is_refined && !e.refined.text.empty())
+        return e.refined.text;
+    std::ostringstream os;
+    os.precision(12);
+    os << e.approx.real();
+    if (e.approx.imag() != 0)
+        os << (e.approx.imag() > 0 ? " + " : " - ") << std::abs(e.approx.imag()) << "i";
+    return os.str();
+}
+
+std::string kind_text(const solve::EigenvalueReport& e)
+{
+    if (e.kind == spectrum::Kind::coordinate_change)
+        return "coordinate change, alpha^(-z*" + std::to_string(e.power) + ")";
+    return spectrum::to_string(e.kind);
+}
+
+slong eigen_digits(const solve::EigenvalueReport& e)
+{
+    return e.is_refined ? std::min<slong>(e.refined.stable_digits, 30) : 12;
+}
+
+std::string coefficients_json(const solve::Result& r, slong digits)
+{
+    nlohmann::json j;
+    j["format"] = "renorm-coefficients";
+    j["version"] = 1;
+    j["order"] = r.problem.order;
+    j["disc"] = {{"centre", r.problem.disc.centre}, {"radius", r.problem.disc.radius}};
+    j["variable"] = "s = (y - centre) / radius, y = |x|^z, g(x) = G(y) = sum_k c_k s^k";
+    j["N"] = r.fixed_point.g.length();
+    j["certified"] = false;
+    j["renorm_version"] = renorm::version;
+    j["commit"] = renorm::git_commit;
+    nlohmann::json c = nlohmann::json::array();
+    for (slong k = 0; k < r.fixed_point.g.length(); ++k)
+        c.push_back(ball::approx_decimal(r.fixed_point.g.coeff(k), digits + 10));
+    j["coefficients"] = c;
+    return j.dump(1) + "\n";
+}
+
+int run_solve(const SolveArgs& a)
+{
+    solve::Request req;
+    req.order = a.order;
+    req.digits = a.digits;
+    req.eigenvalues = a.eigenvalues;
+    solve::validate(req, available_memory_bytes());
+    if (!a.coefficients.empty())
+        io::check_writable(a.coefficients);
+    ProgressLine progress(a.quiet);
+    req.progress = progress.callback();
+    solve::Result r = solve::solve_constants(req);
+    progress.finish();
+    if (!r.converged) {
+        std::cerr << "renorm solve: no result for z = " << a.order << ": " << r.message << "\n";
+        return exit_failed;
+    }
+    const slong digits = std::min({r.alpha.stable_digits, r.delta.stable_digits, a.digits});
+    if (!a.coefficients.empty())
+        io::write_file_atomic(a.coefficients, coefficients_json(r, a.digits));
+    if (a.json) {
+        nlohmann::json j;
+        j["order"] = a.order;
+        j["alpha"] = r.alpha.text;
+        j["delta"] = r.delta.text;
+        j["digits"] = digits;
+        j["alpha_digits"] = std::min(r.alpha.stable_digits, a.digits);
+        j["delta_digits"] = std::min(r.delta.stable_digits, a.digits);
+        nlohmann::json ev = nlohmann::json::array();
+        for (const auto& e : r.eigenvalues)
+            ev.push_back({{"value", eigen_text(e)}, {"kind", kind_text(e)}, {"digits", eigen_digits(e)}});
+        j["eigenvalues"] = ev;
+        j["N"] = r.n;
+        j["N_check"] = r.n_check;
+        j["precision_bits"] = r.prec;
+        j["log10_residual"] = r.log10_residual;
+        j["certified"] = false;
+        j["seconds"] = r.seconds;
+        std::cout << j.dump() << "\n";
+        return exit_ok;
+    }
+    std::cout << "order z = " << a.order << "\n"
+              << "alpha = " << r.alpha.text << "\n"
+              << "delta = " << r.delta.text << "\n";
+    if (!r.eigenvalues.empty()) {
+        std::cout << "next eigenvalues of DT (by modulus):\n";
+        for (const auto& e : r.eigenvalues)
+            std::cout << "  " << eigen_text(e) << "   (" << kind_text(e) << ", " << eigen_digits(e)
+                      << " digits)\n";
+    }
+    std::cout << "digits: alpha " << std::min(r.alpha.stable_digits, a.digits) << ", delta "
+              << std::min(r.delta.stable_digits, a.digits)
+              << " (stable between truncations N = " << r.n << " and N = " << r.n_check << ")\n"
+              << "working precision: " << r.prec << " bits; residual |G - T(G)| = 1e"
+              << static_cast<long>(std::floor(r.log10_residual)) << "\n"
+              << "status: ESTIMATE, not certified (renorm certify proves enclosures)\n";
+    return exit_ok;
+}
+
+} // namespace
+
 void register_solve(CLI::App& app, int* code)
 {
-    auto* sub = app.add_subcommand("solve", "(being written)");
-    sub->callback([code] { *code = exit_failed; });
+    auto args = std::make_shared<SolveArgs>();
+    CLI::App* sub = app.add_subcommand(
+        "solve", "Estimate alpha, delta and the next eigenvalues for a critical point of order z");
+    sub->description(
+        "Solves the doubling equation G(y) = -a G(G(y a^-z)^z), G(0) = 1, a = -1/G(1) (y = |x|^z) by\n"
+        "Newton's method on a truncated Taylor series, then finds delta, the eigenvalue of the\n"
+        "linearised operator outside the unit disc, and the next eigenvalues. Every digit printed\n"
+        "agrees between two truncations (N and about 1.2 N). These are estimates, not proofs.");
+    sub->add_option("-z,--order", args->order, "order z > 1 of the critical point (any real number)")
+        ->capture_default_str();
+    sub->add_option("-d,--digits", args->digits, "significant digits wanted")->capture_default_str();
+    sub->add_option("-k,--eigenvalues", args->eigenvalues, "how many eigenvalues after delta to report (0-50)")
+        ->capture_default_str();
+    sub->add_flag("--json", args->json, "print one JSON object on stdout");
+    sub->add_flag("-q,--quiet", args->quiet, "no progress line on stderr");
+    sub->add_option("--coefficients", args->coefficients,
+                    "also write the coefficients of G to FILE (JSON, decimal strings)");
+    sub->footer("Examples:\n"
+                "  renorm solve                          # z = 2, 100 digits\n"
+                "  renorm solve --order 4 --digits 50 --json\n"
+                "  renorm solve -z 3.5 -d 40 --coefficients g35.json");
+    sub->callback([args, code] { *code = run_solve(*args); });
 }
+
 } // namespace renorm::app

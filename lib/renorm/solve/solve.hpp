@@ -1,0 +1,81 @@
+#pragma once
+/// \file
+/// The whole estimate: fixed point, alpha, delta and the next eigenvalues for one order z, with
+/// the number of digits shown stable by two truncations (N and about 1.2 N). No guarantee: these
+/// are estimates; certify/ proves enclosures.
+
+#include <renorm/newton/fixed_point.hpp>
+#include <renorm/spectrum/spectrum.hpp>
+
+#include <complex>
+#include <string>
+#include <vector>
+
+namespace renorm::solve {
+
+using ball::Ball;
+
+/// What to compute.
+struct Request {
+    std::string order = "2"; ///< z > 1, decimal text
+    slong digits = 100;      ///< digits wanted
+    slong eigenvalues = 4;   ///< how many eigenvalues after delta to report
+    newton::ProgressFn progress;
+};
+
+/// An estimated constant: the value at the working precision and the digits both truncations
+/// agree on.
+struct Estimate {
+    Ball value;           ///< midpoint at the larger truncation (no guarantee)
+    double log10_error;   ///< log10 of |value(N) - value(1.2 N)| + the residual's share
+    slong stable_digits;  ///< significant digits the two truncations agree on
+    /// Decimal text with min(stable_digits, requested) significant digits, correctly rounded
+    /// from the midpoint. Empty when no digit is stable.
+    std::string text;
+};
+
+/// One reported eigenvalue after delta.
+struct EigenvalueReport {
+    std::complex<double> approx; ///< from the dense double matrix
+    spectrum::Kind kind;
+    int power = 0;               ///< m for a coordinate change a^(-zm)
+    Estimate refined;            ///< real eigenvalues only: refined to min(digits, 30)
+    bool is_refined = false;
+};
+
+/// The result of solve_constants().
+struct Result {
+    doubling::Problem problem;
+    newton::FixedPoint fixed_point; ///< at the larger truncation
+    Estimate alpha, delta;
+    std::vector<EigenvalueReport> eigenvalues; ///< after delta, by decreasing modulus
+    slong n = 0, n_check = 0;       ///< the two truncations compared
+    slong prec = 0;                 ///< working precision of the last step, bits
+    double log10_residual = 0;
+    bool converged = false;
+    std::string message;            ///< why not, when not converged
+    double seconds = 0;
+};
+
+/// Resources a request will need, estimated before it runs.
+struct Cost {
+    slong n = 0;         ///< truncation
+    slong prec = 0;      ///< bits
+    double bytes = 0;    ///< peak memory estimate
+    double seconds = 0;  ///< wall time estimate on one core of a 2020s machine
+};
+Cost estimate_cost(const Request& request);
+
+/// Checks a request and throws std::invalid_argument naming the problem and the accepted range:
+/// z not a finite number > 1, digits < 1, eigenvalues < 0 or > 50, or a run whose memory estimate
+/// exceeds `memory_limit_bytes`.
+void validate(const Request& request, double memory_limit_bytes);
+
+/// Runs the whole estimate. No guarantee. Returns converged == false with a message when Newton or
+/// the eigenvalue refinement fails; no number is reported as stable then.
+Result solve_constants(const Request& request);
+
+/// Significant digits on which x and y agree: floor(-log10(|x - y| / |x|)). No guarantee.
+slong approx_agreeing_digits(const Ball& x, const Ball& y, slong cap);
+
+} // namespace renorm::solve

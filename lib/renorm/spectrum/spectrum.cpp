@@ -1,0 +1,228 @@
+#include <renorm/newton/detail/scaled.hpp>
+#include <renorm/spectrum/spectrum.hpp>
+
+#include <algorithm>
+#include <climits>
+#include <cmath>
+#include <limits>
+#include <memory>
+#include <stdexcept>
+
+namespace renorm::spectrum {
+
+using namespace renorm::series;
+using ball::BallVec;
+using doubling::Linearization;
+namespace detail = renorm::newton::detail;
+
+std::string to_string(Kind k)
+{
+    switch (k) {
+    case Kind::relevant:
+        return "relevant";
+    case Kind::coordinate_change:
+        return "coordinate change";
+    case Kind::irrelevant:
+        return "irrelevant";
+    }
+    return "";
+}
+
+Kind approx_classify(std::complex<double> lambda, double alpha, double z, double tol, int* power)
+{
+    if (power)
+        *power = 0;
+    if (std::abs(lambda) > 1.0)
+        return Kind::relevant;
+    if (std::abs(lambda.imag()) <= tol * std::abs(lambda)) {
+        for (int m = 1; m < 64; ++m) {
+            const double t = std::pow(alpha, -z * m);
+            if (t < 1e-300)
+                break;
+            if (std::fabs(lambda.real() - t) <= tol * t) {
+                if (power)
+                    *power = m;
+                return Kind::coordinate_change;
+            }
+        }
+    }
+    return Kind::irrelevant;
+}
+
+std::vector<ApproxEigen> approx_eigenvalues_dense(const BallPoly& g, const doubling::Problem& problem,
+                                                  slong m, slong prec)
+{
+    if (m < 2)
+        throw std::invalid_argument("approx_eigenvalues_dense: m must be >= 2");
+    BallPoly gm = truncated(g, std::max(m, g.length()));
+    Linearization lin(gm, problem, m, prec);
+    Eigen::MatrixXd dt = lin.approx_matrix(m, prec);
+    // Q h = h - h(0) 1, with h(0) = sum_k h_k s0^k: Q = I - e_0 l0^T.
+    Eigen::RowVectorXd l0(m);
+    const double s0 = lin.s_at_zero().approx_double();
+    for (slong k = 0; k < m; ++k)
+        l0(k) = std::pow(s0, static_cast<double>(k));
+    Eigen::MatrixXd q = Eigen::MatrixXd::Identity(m, m);
+    q.row(0) -= l0;
+    Eigen::EigenSolver<Eigen::MatrixXd> es(dt * q);
+    if (es.info() != Eigen::Success)
+        throw std::runtime_error("approx_eigenvalues_dense: the eigenvalue iteration failed");
+    const double alpha = lin.a().approx_double();
+    const double z = problem.order_ball(64).approx_double();
+    std::vector<ApproxEigen> out;
+    const double norm = dt.norm();
+    for (slong i = 0; i < m; ++i) {
+        ApproxEigen e;
+        e.value = es.eigenvalues()(i);
+        if (std::abs(e.value) <= 1e-13 * norm)
+            continue;
+        e.vector = es.eigenvectors().col(i);
+        e.kind = approx_classify(e.value, alpha, z, 1e-6, &e.power);
+        out.push_back(std::move(e));
+    }
+    std::sort(out.begin(), out.end(),
+              [](const ApproxEigen& x, const ApproxEigen& y) { return std::abs(x.value) > std::abs(y.value); });
+    // The eigenvalue 0 of Q's kernel may be resolved as a tiny nonzero number: drop anything
+    // at the level of rounding relative to the largest.
+    return out;
+}
+
+Eigenpair approx_refine_eigenpair(const newton::FixedPoint& fp, const ApproxEigen& seed,
+                                  double digits, const EigenOptions& options)
+{
+    Eigenpair ep;
+    if (std::fabs(seed.value.imag()) > 1e-12 * std::abs(seed.value)) {
+        ep.message = "complex eigenvalues are not refined";
+        return ep;
+    }
+    const doubling::Problem& problem = fp.problem;
+    const double lambda0 = seed.value.real();
+    const double rate = fp.decay_rate > 0.05 ? fp.decay_rate : 0.5;
+    const slong n_final =
+        std::min(fp.g.length(), std::max(newton::approx_length_for_digits(digits + 5, rate), options.min_length));
+    const slong m = std::min<slong>({options.jacobian_size, n_final, static_cast<slong>(seed.vector.size())});
+    if (m < 2) {
+        ep.message = "the seed eigenvector is too short";
+        return ep;
+    }
+
+    // Normalisation index: the largest coefficient of the seed among the first m modes.
+    Eigen::VectorXd h0 = seed.vector.real().head(m);
+    Eigen::Index jstar = 0;
+    h0.cwiseAbs().maxCoeff(&jstar);
+    h0 /= h0(jstar);
+
+    // Bordered chord matrix [[DT - lambda0 I, -h0], [e_j^T, 0]] in double.
+    Eigen::PartialPivLU<Eigen::MatrixXd> lu;
+    {
+        BallPoly gm = truncated(fp.g, std::max(m, std::min(fp.g.length(), m)));
+        Linearization lin(gm, problem, m, 128);
+        Eigen::MatrixXd b = Eigen::MatrixXd::Zero(m + 1, m + 1);
+        b.topLeftCorner(m, m) = lin.approx_matrix(m, 128) - lambda0 * Eigen::MatrixXd::Identity(m, m);
+        b.block(0, m, m, 1) = -h0;
+        b(m, jstar) = 1.0;
+        lu.compute(b);
+    }
+
+    BallPoly h = from_doubles(h0.data(), m);
+    Ball lambda(lambda0);
+    double e = 0; // digits reached
+    double gain = 10;
+    double prev = std::numeric_limits<double>::infinity();
+    slong stalls = 0;
+    slong n = m;
+    const double d_work = digits;
+    std::unique_ptr<Linearization> lin;
+    slong lin_prec = 0, lin_n = 0;
+    for (slong step = 0; step < options.max_steps; ++step) {
+        const double t = std::min(d_work, e + gain);
+        n = std::min(n_final, std::max(n, newton::approx_length_for_digits(t, rate)));
+        if (t >= d_work)
+            n = n_final;
+        const slong want_prec = ball::digits_to_bits(static_cast<slong>(std::ceil(t)) + 5) + 64;
+        // Rebuild DT only when the precision must grow by half or the truncation grows.
+        if (!lin || want_prec > lin_prec || n > lin_n) {
+            lin_prec = std::max(want_prec, std::min<slong>(2 * lin_prec, ball::digits_to_bits(
+                                                              static_cast<slong>(d_work) + 5) + 64));
+            lin_n = std::min(n_final, std::max(n, newton::approx_length_for_digits(
+                                                      ball::bits_to_digits(lin_prec - 64), rate)));
+            lin = std::make_unique<Linearization>(truncated(fp.g, lin_n), problem, lin_n, lin_prec);
+        }
+        n = lin_n;
+        const slong prec = lin_prec;
+        h = truncated(h, n);
+        // Phi = (DT h - lambda h, h_j - 1)
+        BallPoly r = lin->apply(h, prec);
+        BallPoly lh;
+        arb_poly_scalar_mul(lh.get(), h.get(), lambda.get(), prec);
+        arb_poly_sub(r.get(), r.get(), lh.get(), prec);
+        arb_poly_truncate(r.get(), n);
+        r = approx_midpoints(r);
+        BallVec phi(n + 1);
+        for (slong k = 0; k < n; ++k)
+            arb_poly_get_coeff_arb(phi[k], r.get(), k);
+        Ball hj = h.coeff(jstar);
+        arb_sub_ui(phi[n], hj.get(), 1, prec);
+        arb_get_mid_arb(phi[n], phi[n]);
+        Ball rn = norm_l1(r, prec);
+        const double res = detail::log10_upper(rn) - detail::log10_upper(norm_l1(h, prec));
+        ep.log10_residual = res;
+        ep.n = n;
+        ep.prec = prec;
+        ep.steps = step;
+        if (options.progress)
+            options.progress({"eigen", step, n, prec, res, problem.order});
+        if (res <= -d_work && n >= n_final) {
+            ep.converged = true;
+            break;
+        }
+        if (res > prev - 0.5) {
+            if (++stalls >= 4) {
+                ep.message = "the eigenpair refinement stalled at residual 1e" +
+                             std::to_string(static_cast<int>(res));
+                break;
+            }
+        } else {
+            stalls = 0;
+            if (std::isfinite(prev))
+                gain = std::clamp(prev - res, 3.0, 14.0);
+        }
+        prev = res;
+        e = -res;
+        // Correction: low modes and lambda from the bordered LU, high modes from -lambda0 I.
+        const slong mm = std::min(m, n);
+        Eigen::VectorXd x = Eigen::VectorXd::Zero(m + 1);
+        BallVec low(m + 1);
+        for (slong k = 0; k < mm; ++k)
+            arb_set(low[k], phi[k]);
+        arb_set(low[m], phi[n]);
+        const slong ex = detail::max_exponent(low.data(), m + 1);
+        BallVec corr(m + 1);
+        if (ex > LONG_MIN / 4) {
+            x = detail::to_scaled_doubles(low.data(), m + 1, ex);
+            Eigen::VectorXd y = lu.solve(x);
+            detail::from_scaled_doubles(corr.data(), y, ex);
+        }
+        for (slong k = 0; k < n; ++k) {
+            Ball hk = h.coeff(k);
+            if (k < mm) {
+                arb_sub(hk.get(), hk.get(), corr[k], prec);
+            } else {
+                Ball d, ml(-lambda0);
+                arb_div(d.get(), phi[k], ml.get(), prec);
+                arb_sub(hk.get(), hk.get(), d.get(), prec);
+            }
+            h.set_coeff(k, hk);
+        }
+        h = approx_midpoints(h);
+        arb_sub(lambda.get(), lambda.get(), corr[m], prec);
+        arb_get_mid_arb(lambda.get(), lambda.get());
+    }
+    if (!ep.converged && ep.message.empty())
+        ep.message = "the eigenpair refinement did not converge";
+    ep.h = h;
+    ep.lambda = lambda;
+    return ep;
+}
+
+} // namespace renorm::spectrum
