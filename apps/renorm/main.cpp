@@ -20,6 +20,8 @@ int main(int argc, char** argv)
     int code = exit_ok;
     register_solve(app, &code);
     register_cascade(app, &code);
+    register_certify(app, &code);
+    register_verify(app, &code);
     try {
         app.parse(argc, argv);
     } catch (const CLI::CallForHelp& e) {

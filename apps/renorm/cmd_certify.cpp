@@ -1,0 +1,170 @@
+// `renorm certify`: a computer-assisted proof of the fixed point of the doubling operator and of
+// the eigenvalue delta, written as a re-checkable certificate. The mathematics is in
+// lib/renorm/certify (proof) and lib/renorm/io (certificate document); this file parses options,
+// prints and sets the exit code.
+#include "commands.hpp"
+
+#include <renorm/certify/proof.hpp>
+#include <renorm/io/atomic_file.hpp>
+#include <renorm/io/certificate_file.hpp>
+#include <renorm/newton/fixed_point.hpp>
+
+#include <chrono>
+#include <cmath>
+#include <cstdio>
+#include <iostream>
+
+namespace renorm::app {
+
+namespace {
+
+struct CertifyArgs {
+    std::string order = "2";
+    int digits = 100;
+    std::string out;
+    bool json = false;
+};
+
+std::string sci(double x)
+{
+    char buf[32];
+    std::snprintf(buf, sizeof buf, "%.2e", x);
+    return buf;
+}
+
+std::string digits_text(const ball::Ball& b, slong max_digits)
+{
+    slong count = 0;
+    std::string s = ball::determined_digits(b, max_digits, &count);
+    return count == 0 ? std::string("?") : s;
+}
+
+int run_certify(const CertifyArgs& a)
+{
+    if (a.digits < 5 || a.digits > 2000)
+        throw BadInput("--digits must be between 5 and 2000");
+    doubling::Problem problem;
+    problem.order = a.order;
+    (void)problem.order_ball(64); // throws std::invalid_argument for a bad order
+    if (!a.out.empty())
+        io::check_writable(a.out, true);
+
+    const auto t0 = std::chrono::steady_clock::now();
+    // Starting point (no guarantee): continuation in z, then refinement beyond the target so that
+    // the residual bound Y lands below 10^-digits.
+    newton::FixedPoint start = newton::approx_continuation(problem, 40, 192);
+    if (!start.converged) {
+        std::cerr << "renorm certify: no approximate fixed point: " << start.message << "\n";
+        return exit_failed;
+    }
+    const slong target = a.digits + 15;
+    newton::RefineOptions opt;
+    newton::FixedPoint fp = newton::approx_refine(start, target, opt);
+    if (!fp.converged) {
+        std::cerr << "renorm certify: the approximate fixed point did not converge: " << fp.message
+                  << "\n";
+        return exit_failed;
+    }
+    const auto t1 = std::chrono::steady_clock::now();
+    const slong prec = ball::digits_to_bits(a.digits + 25, 32);
+    certify::Certificate c = certify::certify_constants(problem, fp.g, fp.n, prec, 128);
+    const auto t2 = std::chrono::steady_clock::now();
+    const double t_solve = std::chrono::duration<double>(t1 - t0).count();
+    const double t_proof = std::chrono::duration<double>(t2 - t1).count();
+
+    bool enough = false;
+    if (c.status == certify::Status::certified) {
+        const double need = std::pow(10.0, -a.digits);
+        enough = c.alpha.radius_upper() < need && c.delta.radius_upper() < need;
+    }
+    std::string written;
+    if (enough && !a.out.empty()) {
+        nlohmann::json doc = io::certificate_to_json(c);
+        io::write_file_atomic(a.out, doc.dump(1) + "\n");
+        written = doc["checksum"]["value"].get<std::string>();
+    }
+
+    if (a.json) {
+        nlohmann::json j;
+        j["order"] = a.order;
+        j["status"] = c.status == certify::Status::certified ? (enough ? "certified" : "too_wide")
+                                                             : "not_certified";
+        j["message"] = c.message;
+        j["truncation"] = c.data.n;
+        j["prec"] = c.data.prec;
+        j["seconds"] = {{"solve", t_solve}, {"proof", t_proof}};
+        j["fixed_point"] = {{"Y", c.fixed_point.y.approx_double()},
+                            {"Z", c.fixed_point.z.approx_double()},
+                            {"rho", c.data.rho_g.approx_double()}};
+        j["eigenpair"] = {{"Y", c.eigen.y.approx_double()},
+                          {"Z0", c.eigen.z0.approx_double()},
+                          {"Z1", c.eigen.z1.approx_double()},
+                          {"rho", c.data.rho_e.approx_double()}};
+        if (c.status == certify::Status::certified) {
+            j["alpha"] = {{"digits", digits_text(c.alpha, a.digits + 30)},
+                          {"radius", c.alpha.radius_upper()},
+                          {"certified", true}};
+            j["delta"] = {{"digits", digits_text(c.delta, a.digits + 30)},
+                          {"radius", c.delta.radius_upper()},
+                          {"certified", true}};
+        }
+        if (!written.empty())
+            j["certificate"] = {{"path", a.out}, {"sha256", written}};
+        std::cout << j.dump(2) << "\n";
+    } else {
+        std::cout << "order z = " << a.order << ", N = " << c.data.n << " modes, " << c.data.prec
+                  << " bits (Y) / " << c.data.prec_low << " bits (Z); solve " << sci(t_solve)
+                  << " s, proof " << sci(t_proof) << " s\n";
+        if (c.fixed_point.y.is_finite())
+            std::cout << "fixed point:  Y = " << sci(c.fixed_point.y.approx_double())
+                      << "  Z = " << sci(c.fixed_point.z.approx_double())
+                      << "  rho = " << sci(c.data.rho_g.approx_double())
+                      << (c.fixed_point.closes ? "  (Y + Z rho < rho holds)" : "") << "\n";
+        if (c.eigen.y.is_finite())
+            std::cout << "eigenpair:    Y = " << sci(c.eigen.y.approx_double())
+                      << "  Z = " << sci(c.eigen.z0.approx_double()) << " + "
+                      << sci(c.eigen.z1.approx_double()) << " rho  rho = "
+                      << sci(c.data.rho_e.approx_double())
+                      << (c.eigen.closes ? "  (Y + Z rho < rho holds)" : "") << "\n";
+        if (c.status == certify::Status::certified) {
+            std::cout << "alpha = " << digits_text(c.alpha, a.digits + 30)
+                      << "  [certified, radius " << sci(c.alpha.radius_upper()) << "]\n";
+            std::cout << "delta = " << digits_text(c.delta, a.digits + 30)
+                      << "  [certified, radius " << sci(c.delta.radius_upper()) << "]\n";
+        }
+    }
+    if (c.status != certify::Status::certified) {
+        std::cerr << "renorm certify: NOT certified: " << c.message
+                  << (a.out.empty() ? "" : "; no file written") << "\n";
+        return c.status == certify::Status::bad_input ? exit_bad_input : exit_not_certified;
+    }
+    if (!enough) {
+        std::cerr << "renorm certify: the proof closes but the enclosures are wider than 1e-"
+                  << a.digits << "; no file written\n";
+        return exit_not_certified;
+    }
+    if (!written.empty() && !a.json)
+        std::cout << "certificate written to " << a.out << " (SHA-256 " << written << ")\n";
+    return exit_ok;
+}
+
+} // namespace
+
+void register_certify(CLI::App& app, int* code)
+{
+    auto args = std::make_shared<CertifyArgs>();
+    auto* sub = app.add_subcommand(
+        "certify", "Prove enclosures of alpha and delta (computer-assisted proof in ball "
+                   "arithmetic) and write a certificate that `renorm verify` re-checks.");
+    sub->add_option("--order,-z", args->order, "order z of the critical point (decimal, > 1)")
+        ->default_val("2");
+    sub->add_option("--digits,-d", args->digits, "enclosure radius below 10^-digits")
+        ->default_val(100);
+    sub->add_option("--out,-o", args->out, "certificate file (written only when certified)");
+    sub->add_flag("--json", args->json, "print a JSON summary");
+    sub->footer("Example: renorm certify --order 2 --digits 100 --out alpha2.cert.json\n"
+                "Exit codes: 0 certified, 1 solver failed, 2 bad input, 3 not certified.");
+    sub->callback([args, code] { *code = run_certify(*args); });
+}
+
+} // namespace renorm::app
