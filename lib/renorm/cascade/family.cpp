@@ -181,8 +181,9 @@ CriticalPoint critical_point(const Family& family, slong prec)
             g_prev = gx;
             continue;
         }
-        if (gx == 0 || (g_prev < 0) != (gx < 0))
-            brackets.push_back(gx == 0 ? x : 0.5 * (x + x_prev));
+        // A zero on a grid point counts as positive, so it gives one sign change, not two.
+        if ((g_prev < 0) != (gx < 0))
+            brackets.push_back(0.5 * (x + x_prev));
         x_prev = x;
         g_prev = gx;
     }

@@ -294,7 +294,19 @@ void JetEvaluator::eval_node(int i)
         chain(out, a, g0, g1, g2, t, fl, prec);
         return;
     case Op::abs:
-        arb_abs(g0, a + V);
+        if (arb_contains_zero(a + V)) {
+            // |u| over a ball holding 0 is [0, max |u|]: a ball that is certainly >= 0, so
+            // that a real power of it stays defined.
+            arf_t lo, hi;
+            arf_init(lo);
+            arf_init(hi);
+            arb_get_abs_ubound_arf(hi, a + V, MAG_BITS); // hi/2 is then exact as a mag
+            arb_set_interval_arf(g0, lo, hi, prec);
+            arf_clear(lo);
+            arf_clear(hi);
+        } else {
+            arb_abs(g0, a + V);
+        }
         arb_sgn(g1, a + V); // [-1, 1] when the ball contains 0
         if (arb_contains_zero(a + V))
             arb_zero_pm_inf(g2);
@@ -338,11 +350,15 @@ void JetEvaluator::eval_node(int i)
             // domain (NaN).
             arb_srcptr p = b + V;
             arb_ptr q = m_tmp[4];
+            // abs, sqrt and exp are >= 0 even when rounding puts a ball's lower end below 0.
+            const Op base = m_nodes[nd.a].op;
+            const bool nonneg = arb_is_nonnegative(a + V) || base == Op::abs ||
+                                base == Op::sqrt || base == Op::exp;
             if (arb_is_positive(a + V)) {
                 arb_pow(g0, a + V, p, prec);
                 arb_div(g1, g0, a + V, prec);
                 arb_div(g2, g1, a + V, prec);
-            } else if (arb_is_nonnegative(a + V)) {
+            } else if (nonneg) {
                 pow_nonneg(g0, a + V, p, prec);
                 arb_sub_ui(q, p, 1, prec);
                 pow_nonneg(g1, a + V, q, prec);
