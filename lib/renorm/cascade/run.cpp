@@ -463,10 +463,16 @@ double approx_cascade_seconds(const Family& family, const CascadeOptions& o)
     // the hand-written quadratic kernel, a polynomial expression, an expression with
     // elementary functions.
     double per_step = family.fast_quadratic ? 1.5e-7 : 6e-7;
-    for (const auto& nd : family.expr.nodes())
-        if (nd.op == Op::sin || nd.op == Op::cos || nd.op == Op::tan || nd.op == Op::exp ||
-            nd.op == Op::log || nd.op == Op::sqrt || nd.op == Op::pow)
+    const auto& nodes = family.expr.nodes();
+    for (const auto& nd : nodes) {
+        const bool integer_power = nd.op == Op::pow && nodes[nd.b].op == Op::number &&
+                                   nodes[nd.b].text.find_first_not_of("0123456789") ==
+                                       std::string::npos;
+        if (!family.fast_quadratic && !integer_power &&
+            (nd.op == Op::sin || nd.op == Op::cos || nd.op == Op::tan || nd.op == Op::exp ||
+             nd.op == Op::log || nd.op == Op::sqrt || nd.op == Op::pow))
             per_step = std::max(per_step, 3e-6);
+    }
     double passes = o.kind == SequenceKind::superstable ? 4 : 30;
     double total = 0;
     for (int n = 0; n <= o.levels; ++n) {
