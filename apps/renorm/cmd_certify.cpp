@@ -23,6 +23,7 @@ struct CertifyArgs {
     int digits = 100;
     std::string out;
     bool json = false;
+    std::vector<double> disc;
 };
 
 std::string sci(double x)
@@ -45,6 +46,12 @@ int run_certify(const CertifyArgs& a)
         throw BadInput("--digits must be between 5 and 2000");
     doubling::Problem problem;
     problem.order = a.order;
+    if (!a.disc.empty()) {
+        if (a.disc.size() != 2 || !(a.disc[1] > 0) || !(a.disc[0] < a.disc[1]))
+            throw BadInput("--disc needs CENTRE,RADIUS with 0 < CENTRE < RADIUS");
+        problem.disc.centre = a.disc[0];
+        problem.disc.radius = a.disc[1];
+    }
     (void)problem.order_ball(64); // throws std::invalid_argument for a bad order
     if (!a.out.empty())
         io::check_writable(a.out, true);
@@ -56,6 +63,20 @@ int run_certify(const CertifyArgs& a)
     if (!start.converged) {
         std::cerr << "renorm certify: no approximate fixed point: " << start.message << "\n";
         return exit_failed;
+    }
+    if (a.disc.empty()) {
+        // The proof needs u and v to map the disc well inside itself; the default disc does
+        // not do that for larger z, so pick one (no guarantee; the proof checks it).
+        series::Disc d = certify::approx_choose_disc(problem, start.g, start.n);
+        if (d.centre != problem.disc.centre || d.radius != problem.disc.radius) {
+            problem.disc = d;
+            start = newton::approx_continuation(problem, 40, 192);
+            if (!start.converged) {
+                std::cerr << "renorm certify: no approximate fixed point on the disc: "
+                          << start.message << "\n";
+                return exit_failed;
+            }
+        }
     }
     const slong target = a.digits + 15;
     newton::RefineOptions opt;
@@ -91,6 +112,7 @@ int run_certify(const CertifyArgs& a)
                                                              : "not_certified";
         j["message"] = c.message;
         j["truncation"] = c.data.n;
+        j["disc"] = {{"centre", problem.disc.centre}, {"radius", problem.disc.radius}};
         j["prec"] = c.data.prec;
         j["seconds"] = {{"solve", t_solve}, {"proof", t_proof}};
         j["fixed_point"] = {{"Y", c.fixed_point.y.approx_double()},
@@ -112,7 +134,8 @@ int run_certify(const CertifyArgs& a)
             j["certificate"] = {{"path", a.out}, {"sha256", written}};
         std::cout << j.dump(2) << "\n";
     } else {
-        std::cout << "order z = " << a.order << ", N = " << c.data.n << " modes, " << c.data.prec
+        std::cout << "order z = " << a.order << ", disc |y - " << problem.disc.centre
+                  << "| <= " << problem.disc.radius << ", N = " << c.data.n << " modes, " << c.data.prec
                   << " bits (Y) / " << c.data.prec_low << " bits (Z); solve " << sci(t_solve)
                   << " s, proof " << sci(t_proof) << " s\n";
         if (c.fixed_point.y.is_finite())
@@ -161,6 +184,10 @@ void register_certify(CLI::App& app, int* code)
     sub->add_option("--digits,-d", args->digits, "enclosure radius below 10^-digits")
         ->default_val(100);
     sub->add_option("--out,-o", args->out, "certificate file (written only when certified)");
+    sub->add_option("--disc", args->disc,
+                    "CENTRE,RADIUS of the disc |y - c| <= r (default: 0.5,0.625, or a better one "
+                    "chosen automatically when u, v do not map it well inside itself)")
+        ->delimiter(',');
     sub->add_flag("--json", args->json, "print a JSON summary");
     sub->footer("Example: renorm certify --order 2 --digits 100 --out alpha2.cert.json\n"
                 "Exit codes: 0 certified, 1 solver failed, 2 bad input, 3 not certified.");

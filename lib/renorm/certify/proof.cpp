@@ -403,6 +403,51 @@ Certificate certify_constants(const doubling::Problem& problem, const BallPoly& 
 
 Certificate recheck(const ProofData& data) { return run_recheck(data, Mutation::none); }
 
+double approx_disc_good_enough = 0.92;
+
+series::Disc approx_choose_disc(const doubling::Problem& problem, const BallPoly& g, slong n)
+{
+    const slong prec = 128;
+    const double centres[] = {0.5, 0.52, 0.55, 0.58};
+    const double radii[] = {0.6, 0.625, 0.65};
+    series::Disc best = problem.disc;
+    double best_r = 2.0;
+    {
+        Models md = detail::compute_models(problem, g, Bound(), std::min<slong>(n, g.length()), false,
+                                           Mutation::none, prec);
+        if (md.ok) {
+            best_r = std::max(md.r_u.approx_double(), md.r_v.approx_double());
+            if (best_r <= approx_disc_good_enough)
+                return best;
+        }
+    }
+    for (double c : centres) {
+        for (double r : radii) {
+            if (!(c < r))
+                continue;
+            // s_old = (y - c_old)/r_old with y = c + r s_new: an exact affine re-expansion.
+            Ball b0, b1, cc(c), rr(r), co(problem.disc.centre), ro(problem.disc.radius);
+            arb_sub(b0.get(), cc.get(), co.get(), prec);
+            arb_div(b0.get(), b0.get(), ro.get(), prec);
+            arb_div(b1.get(), rr.get(), ro.get(), prec);
+            BallPoly gc = approx_midpoints(compose_affine(g, b0, b1, g.length(), prec));
+            doubling::Problem pc = problem;
+            pc.disc.centre = c;
+            pc.disc.radius = r;
+            Models md = detail::compute_models(pc, gc, Bound(), std::min<slong>(n, gc.length()),
+                                               false, Mutation::none, prec);
+            if (!md.ok)
+                continue;
+            const double worst = std::max(md.r_u.approx_double(), md.r_v.approx_double());
+            if (worst < best_r) {
+                best_r = worst;
+                best = pc.disc;
+            }
+        }
+    }
+    return best;
+}
+
 namespace detail {
 
 Certificate certify_constants_mutated(const doubling::Problem& problem, const BallPoly& g0, slong n,

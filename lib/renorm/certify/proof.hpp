@@ -104,6 +104,14 @@ Certificate certify_constants(const doubling::Problem& problem, const BallPoly& 
 /// claims follow. Encloses: as certify_constants, for the stored radii.
 Certificate recheck(const ProofData& data);
 
+/// A disc on which the proof is likely to close: problem.disc when good enough, else one chosen from a small grid of centres and radii
+/// (c < r, so that u = y a^-z maps the disc into itself) by the smallest max(||sigma_u||,
+/// ||sigma_v||) at an approximate fixed point g (given on problem.disc, re-expanded exactly as a
+/// polynomial on each candidate). No guarantee: the proof checks every hypothesis itself.
+/// The given disc is kept when max(||sigma_u||, ||sigma_v||) is at most this (tunable).
+extern double approx_disc_good_enough;
+series::Disc approx_choose_disc(const doubling::Problem& problem, const BallPoly& g, slong n);
+
 namespace detail {
 /// certify_constants with a deliberate error in T or DT (tests only).
 Certificate certify_constants_mutated(const doubling::Problem& problem, const BallPoly& g0, slong n,
