@@ -1,0 +1,125 @@
+#include <renorm/series/series.hpp>
+
+#include <gtest/gtest.h>
+
+#include <cstdlib>
+#include <iostream>
+
+using namespace renorm;
+using namespace renorm::series;
+
+namespace {
+unsigned long test_seed()
+{
+    const char* s = std::getenv("RENORM_TEST_SEED");
+    unsigned long seed = s ? std::strtoul(s, nullptr, 10) : 20261202UL;
+    std::cerr << "RENORM_TEST_SEED=" << seed << "\n";
+    return seed;
+}
+int multiplier()
+{
+    const char* s = std::getenv("RENORM_TEST_MULTIPLIER");
+    return s ? std::max(1, std::atoi(s)) : 1;
+}
+BallPoly random_poly(flint_rand_t st, slong len, double decay, slong prec)
+{
+    BallPoly p;
+    for (slong k = 0; k < len; ++k) {
+        Ball x;
+        arb_urandom(x.get(), st, prec);
+        arb_mul_2exp_si(x.get(), x.get(), -static_cast<slong>(decay * static_cast<double>(k)));
+        if (k % 2)
+            arb_neg(x.get(), x.get());
+        p.set_coeff(k, x);
+    }
+    return p;
+}
+} // namespace
+
+TEST(Series, ComposeEqualsEvaluationOfTheComposition)
+{
+    // With n > deg f * deg h the truncated composition is the whole polynomial f(h), so its value
+    // at a point must overlap f(h(s)) evaluated directly at 4x the precision.
+    flint_rand_t st;
+    flint_randinit(st);
+    flint_randseed(st, test_seed(), 7);
+    for (int it = 0; it < 5 * multiplier(); ++it) {
+        BallPoly f = random_poly(st, 8, 1.0, 200);
+        BallPoly h = random_poly(st, 4, 1.5, 200);
+        BallPoly fh = compose(f, h, 8 * 4, 200);
+        Ball s(0.37), hs, direct, via;
+        arb_poly_evaluate(hs.get(), h.get(), s.get(), 800);
+        arb_poly_evaluate(direct.get(), f.get(), hs.get(), 800);
+        via = evaluate(fh, s, 200);
+        EXPECT_TRUE(overlaps(direct, via)) << enclosure_string(direct, 40) << " vs " << enclosure_string(via, 40);
+        EXPECT_LT(via.radius_upper(), 1e-50);
+    }
+    flint_randclear(st);
+}
+
+TEST(Series, ComposeAffineAgreesWithGeneralCompose)
+{
+    flint_rand_t st;
+    flint_randinit(st);
+    flint_randseed(st, test_seed(), 11);
+    BallPoly f = random_poly(st, 30, 1.0, 300);
+    Ball b0(-0.6723), b1(0.1596);
+    BallPoly lin;
+    lin.set_coeff(0, b0);
+    lin.set_coeff(1, b1);
+    BallPoly x = compose_affine(f, b0, b1, 30, 300);
+    BallPoly y = compose(f, lin, 30, 300);
+    for (slong k = 0; k < 30; ++k)
+        EXPECT_TRUE(overlaps(x.coeff(k), y.coeff(k))) << "k = " << k;
+    flint_randclear(st);
+}
+
+TEST(Series, PowSeriesMatchesExactBinomials)
+{
+    // (1 + s)^2 = 1 + 2 s + s^2 exactly; (1 + s)^(1/2) squared is 1 + s.
+    BallPoly w;
+    w.set_coeff(0, Ball(slong{1}));
+    w.set_coeff(1, Ball(slong{1}));
+    BallPoly sq = pow_series(w, Ball(slong{2}), 6, 128);
+    EXPECT_TRUE(arb_contains_si(sq.coeff(0).get(), 1));
+    EXPECT_TRUE(arb_contains_si(sq.coeff(1).get(), 2));
+    EXPECT_TRUE(arb_contains_si(sq.coeff(2).get(), 1));
+    EXPECT_TRUE(arb_contains_si(sq.coeff(3).get(), 0));
+    BallPoly root = pow_series(w, Ball(0.5), 20, 256);
+    BallPoly back = mullow(root, root, 20, 256);
+    EXPECT_TRUE(arb_contains_si(back.coeff(0).get(), 1));
+    EXPECT_TRUE(arb_contains_si(back.coeff(1).get(), 1));
+    for (slong k = 2; k < 20; ++k)
+        EXPECT_TRUE(arb_contains_si(back.coeff(k).get(), 0)) << "k = " << k;
+    BallPoly neg;
+    neg.set_coeff(0, Ball(-1.0));
+    EXPECT_THROW(pow_series(neg, Ball(0.5), 4, 64), std::invalid_argument);
+}
+
+TEST(Series, NormAndDecay)
+{
+    const double c[4] = {1.0, -0.5, 0.25, -0.125};
+    BallPoly p = from_doubles(c, 4);
+    Ball n = norm_l1(p, 64);
+    // an upper bound, rounded upward in 30-bit magnitude arithmetic
+    EXPECT_GE(n.approx_double(), 1.875);
+    EXPECT_LE(n.approx_double(), 1.875 * (1 + 1e-8));
+    // coefficients 10^-k decay one digit a term
+    BallPoly q;
+    for (slong k = 0; k < 40; ++k) {
+        Ball x;
+        arb_set_ui(x.get(), 10);
+        arb_pow_ui(x.get(), x.get(), static_cast<ulong>(k), 128);
+        arb_inv(x.get(), x.get(), 128);
+        q.set_coeff(k, x);
+    }
+    EXPECT_NEAR(approx_decay_rate(q), 1.0, 1e-6);
+    EXPECT_THROW(mullow(p, p, 3, 1), std::invalid_argument);
+}
+
+TEST(Series, DiscMapsYToS)
+{
+    Disc d{0.5, 0.625};
+    Ball s = d.to_s(Ball(slong{1}), 64);
+    EXPECT_DOUBLE_EQ(s.approx_double(), 0.8);
+}
