@@ -8,7 +8,7 @@ packages=(
     libeigen3-dev libspectra-dev
     libcli11-dev nlohmann-json3-dev
     libgtest-dev libbenchmark-dev
-    python3 python3-mpmath
+    python3 python3-mpmath time
 )
 missing=()
 for p in "${packages[@]}"; do

@@ -137,11 +137,6 @@ void register_solve(CLI::App& app, int* code)
     auto args = std::make_shared<SolveArgs>();
     CLI::App* sub = app.add_subcommand(
         "solve", "Estimate alpha, delta and the next eigenvalues for a critical point of order z");
-    sub->description(
-        "Solves the doubling equation G(y) = -a G(G(y a^-z)^z), G(0) = 1, a = -1/G(1) (y = |x|^z) by\n"
-        "Newton's method on a truncated Taylor series, then finds delta, the eigenvalue of the\n"
-        "linearised operator outside the unit disc, and the next eigenvalues. Every digit printed\n"
-        "agrees between two truncations (N and about 1.2 N). These are estimates, not proofs.");
     sub->add_option("-z,--order", args->order, "order z > 1 of the critical point (any real number)")
         ->capture_default_str();
     sub->add_option("-d,--digits", args->digits, "significant digits wanted")->capture_default_str();
@@ -151,7 +146,13 @@ void register_solve(CLI::App& app, int* code)
     sub->add_flag("-q,--quiet", args->quiet, "no progress line on stderr");
     sub->add_option("--coefficients", args->coefficients,
                     "also write the coefficients of G to FILE (JSON, decimal strings)");
-    sub->footer("Examples:\n"
+    sub->footer("Solves the doubling equation G(y) = -a G(G(y a^-z)^z), G(0) = 1, a = -1/G(1), with\n"
+                "y = |x|^z, by Newton's method on a truncated Taylor series, then finds delta (the\n"
+                "eigenvalue of the linearised operator outside the unit disc) and the next eigenvalues,\n"
+                "each marked relevant, irrelevant, or a coordinate change alpha^(-zm). Every digit\n"
+                "printed agrees between two truncations (N and about 1.2 N). These are ESTIMATES;\n"
+                "'renorm certify' proves enclosures.\n\n"
+                "Examples:\n"
                 "  renorm solve                          # z = 2, 100 digits\n"
                 "  renorm solve --order 4 --digits 50 --json\n"
                 "  renorm solve -z 3.5 -d 40 --coefficients g35.json");
