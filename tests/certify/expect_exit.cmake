@@ -1,0 +1,20 @@
+# Runs a command and checks its exit code and, optionally, its stdout or stderr.
+# Usage: cmake -DCMD="prog;arg;..." -DEXPECT=3 [-DSTDERR_REGEX=...] [-DSTDOUT_REGEX=...]
+#        [-DPREPARE="prog;arg;..."] -P expect_exit.cmake
+if(DEFINED PREPARE)
+    execute_process(COMMAND ${PREPARE} RESULT_VARIABLE prc)
+    if(NOT prc EQUAL 0)
+        message(FATAL_ERROR "preparation failed with ${prc}")
+    endif()
+endif()
+execute_process(COMMAND ${CMD} RESULT_VARIABLE rc OUTPUT_VARIABLE out ERROR_VARIABLE err)
+if(NOT rc EQUAL EXPECT)
+    message(FATAL_ERROR "exit code ${rc}, expected ${EXPECT}\nstdout:\n${out}\nstderr:\n${err}")
+endif()
+if(DEFINED STDERR_REGEX AND NOT err MATCHES "${STDERR_REGEX}")
+    message(FATAL_ERROR "stderr does not match '${STDERR_REGEX}':\n${err}")
+endif()
+if(DEFINED STDOUT_REGEX AND NOT out MATCHES "${STDOUT_REGEX}")
+    message(FATAL_ERROR "stdout does not match '${STDOUT_REGEX}':\n${out}")
+endif()
+message(STATUS "exit code ${rc} as expected")
