@@ -38,7 +38,7 @@ ball::Ball mid_of(const ball::Ball& b)
 slong level_prec(const CascadeOptions& o, int n)
 {
     slong p = o.prec_base + o.prec_per_level * n;
-    p = (p + 31) / 32 * 32;
+    p = (p + 63) / 64 * 64;
     return std::min(std::max<slong>(p, 64), o.max_prec);
 }
 
@@ -302,10 +302,29 @@ void run_superstable(const Family& family, const CascadeOptions& o, CascadeResul
         } else {
             // mu_n ~ mu_{n-1} + (mu_{n-1} - mu_{n-2}) / delta_{n-1}, in ball arithmetic on the
             // exact Newton values (a double would cap the guess at 16 digits).
-            ball::Ball d1, d2, r, t;
+            // With five or more values, delta_n itself is predicted from the last three ratios
+            // (delta_n - delta_{n-1} ~ rho (delta_{n-1} - delta_{n-2})), which makes the guess
+            // good enough for the proof after a single Newton pass at the deep levels.
+            auto delta_at = [&](std::size_t j) { // (mu_{j-1} - mu_{j-2}) / (mu_j - mu_{j-1})
+                ball::Ball a, b, q;
+                arb_sub(a.get(), approx[j - 1].get(), approx[j - 2].get(), gprec);
+                arb_sub(b.get(), approx[j].get(), approx[j - 1].get(), gprec);
+                arb_div(q.get(), a.get(), b.get(), gprec);
+                return q;
+            };
+            ball::Ball d1, r, t;
             arb_sub(d1.get(), approx[k - 1].get(), approx[k - 2].get(), gprec);
-            arb_sub(d2.get(), approx[k - 2].get(), approx[k - 3].get(), gprec);
-            arb_div(r.get(), d2.get(), d1.get(), gprec); // delta_{n-1}
+            r = delta_at(k - 1); // delta_{n-1}
+            if (k >= 5) {
+                ball::Ball r2 = delta_at(k - 2), r3 = delta_at(k - 3), a, b, rho;
+                arb_sub(a.get(), r.get(), r2.get(), gprec);
+                arb_sub(b.get(), r2.get(), r3.get(), gprec);
+                arb_div(rho.get(), a.get(), b.get(), gprec);
+                const double rh = rho.approx_double();
+                if (std::isfinite(rh) && std::fabs(rh) < 0.9) {
+                    arb_addmul(r.get(), a.get(), rho.get(), gprec);
+                }
+            }
             arb_div(t.get(), d1.get(), r.get(), gprec);
             arb_add(guess.get(), approx[k - 1].get(), t.get(), gprec);
             guess = mid_of(guess);

@@ -26,8 +26,8 @@ struct CascadeOptions {
     SequenceKind kind = SequenceKind::superstable;
     int levels = 12;            ///< the last level L (period 2^L); 1..max_cascade_level
     int threads = 2;            ///< 2: prove level n while locating level n+1
-    slong prec_base = 160;      ///< start precision at level n: prec_base + prec_per_level n
-    slong prec_per_level = 6;
+    slong prec_base = 112;      ///< start precision at level n: prec_base + prec_per_level n,
+    slong prec_per_level = 3;   ///< rounded up to a multiple of 64 (whole limbs)
     slong max_prec = 16384;     ///< escalation cap (bits)
     int max_newton = 60;
 };
