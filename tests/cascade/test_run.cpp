@@ -7,7 +7,9 @@
 //  - alpha: OEIS A006891, 2.50290787509589282228390287321821578638127137672714997733...
 //    (from memory; as above);
 //  - accumulation point of mu x (1 - x): OEIS A098587, 3.569945671870944901842005151386...
-//    (from memory);
+//    (from memory; we were given 40 digits, "...1386498250545"; our 25-level quadratic run,
+//    converted by r = 1 + sqrt(1 + 4 mu), gives ...13864989367638..., so the given string is
+//    used to 34 digits only);
 //  - the quadratic family 1 - mu x^2 is conjugate to the logistic map by x = (2y - 1) *
 //    mu_l/(2 mu) style affine change, with mu = r (r - 2)/4 (common practice), so its
 //    accumulation point is r_inf (r_inf - 2)/4 = 1.40115518909205060052382678789386...
@@ -20,6 +22,8 @@
 
 #include <gtest/gtest.h>
 
+#include <algorithm>
+#include <cmath>
 #include <map>
 #include <string>
 
@@ -71,7 +75,10 @@ TEST(Cascade, LogisticAccumulationPointMatchesPublished)
     ASSERT_TRUE(r.mu_limit.ok);
     // The estimate claims some digits; those digits must be right.
     EXPECT_GE(r.mu_limit.digits, 20);
-    EXPECT_GE(agreeing_digits(r.mu_limit.value, logistic_limit_published), r.mu_limit.digits - 1)
+    // The string we were given is only trusted to 34 digits (see the bench: our 25-level value
+    // differs from it in digit 35).
+    EXPECT_GE(agreeing_digits(r.mu_limit.value, logistic_limit_published),
+              std::min<slong>(r.mu_limit.digits - 1, 33))
         << r.mu_limit.text;
 }
 
@@ -87,7 +94,8 @@ TEST(Cascade, QuadraticAccumulationPointMatchesConjugateLogistic)
     arb_mul_2exp_si(q.get(), q.get(), -2);
     std::string ref = ball::approx_decimal(q, 38);
     EXPECT_GE(r.mu_limit.digits, 20);
-    EXPECT_GE(agreeing_digits(r.mu_limit.value, ref.c_str()), r.mu_limit.digits - 1)
+    EXPECT_GE(agreeing_digits(r.mu_limit.value, ref.c_str()),
+              std::min<slong>(r.mu_limit.digits - 1, 33))
         << r.mu_limit.text << " vs " << ref;
 }
 
@@ -95,7 +103,7 @@ TEST(Cascade, UniversalityOfDeltaAndAlpha)
 {
     // Four different families with a quadratic maximum: the same delta and |alpha|.
     std::vector<const CascadeResult*> rs = {&run("quadratic", 16), &run("logistic", 16),
-                                            &run("sine", 15), &run("cubic", 16)};
+                                            &run("sine", 15), &run("cubic", 17)};
     for (const CascadeResult* r : rs) {
         ASSERT_FALSE(r->failed) << r->failure;
         EXPECT_TRUE(r->all_certified());
@@ -103,7 +111,7 @@ TEST(Cascade, UniversalityOfDeltaAndAlpha)
         ASSERT_TRUE(r->alpha_limit.ok);
         EXPECT_GE(agreeing_digits(r->delta_limit.value, delta_published), 12)
             << r->delta_limit.text;
-        EXPECT_GE(agreeing_digits(r->alpha_limit.value, alpha_published), 10)
+        EXPECT_GE(agreeing_digits(r->alpha_limit.value, alpha_published), 12)
             << r->alpha_limit.text;
         // Claimed digits are correct digits.
         EXPECT_GE(agreeing_digits(r->delta_limit.value, delta_published),

@@ -42,7 +42,7 @@ struct LimitEstimate {
 };
 
 /// Number of last terms the variants use.
-inline int extrapolation_window = 8;
+inline int extrapolation_window = 10;
 
 /// Estimates lim s_j. The variants are Wynn epsilon (value), iterated Aitken, and Wynn epsilon
 /// without the last term; the error is the largest difference between them, and the digits

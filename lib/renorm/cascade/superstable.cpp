@@ -2,8 +2,6 @@
 #include <renorm/cascade/superstable.hpp>
 
 #include <cmath>
-#include <cstdio>
-#include <cstdlib>
 #include <cstdint>
 #include <memory>
 #include <stdexcept>
@@ -294,9 +292,6 @@ SuperstableNewton approx_superstable(const Family& family, const ball::Ball& c, 
             return out;
         }
         const double sd = std::fabs(step.approx_double());
-        if (std::getenv("RENORM_CASCADE_TRACE"))
-            std::fprintf(stderr, "n=%ld prec=%ld it=%d step=%.3e rad=%.3e spacing=%.3e\n", (long)n,
-                         (long)prec, it, sd, step.radius_upper(), spacing);
         ball::Ball next;
         arb_sub(next.get(), g.get(), mid_of(step).get(), prec);
         next = mid_of(next);
@@ -339,9 +334,6 @@ SuperstableLevel certify_superstable_from(const Family& family, const ball::Ball
         ball::Ball rho(4 * (sd + step.radius_upper()) + std::ldexp(spacing, -target - 8));
         SuperstableCertificate cert = certify_superstable(family, c, n, center, at_center, rho, prec);
         ++out.passes;
-        if (std::getenv("RENORM_CASCADE_TRACE"))
-            std::fprintf(stderr, "  n=%ld cert %s rho=%.3e K rad=%.3e\n", (long)n,
-                         to_string(cert.status), rho.approx_double(), cert.krawczyk.radius_upper());
         if (cert.status != Status::certified) {
             arb_mul_2exp_si(rho.get(), rho.get(), 8);
             cert = certify_superstable(family, c, n, center, at_center, rho, prec);
