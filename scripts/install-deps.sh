@@ -9,6 +9,7 @@ packages=(
     libcli11-dev nlohmann-json3-dev
     libgtest-dev libbenchmark-dev
     python3 python3-mpmath time
+    libopenmpi-dev openmpi-bin
 )
 missing=()
 for p in "${packages[@]}"; do

@@ -27,5 +27,6 @@ void register_solve(CLI::App& app, int* code);
 void register_cascade(CLI::App& app, int* code);
 void register_certify(CLI::App& app, int* code);
 void register_verify(CLI::App& app, int* code);
+void register_table(CLI::App& app, int* code);
 
 } // namespace renorm::app

@@ -22,6 +22,7 @@ int main(int argc, char** argv)
     register_cascade(app, &code);
     register_certify(app, &code);
     register_verify(app, &code);
+    register_table(app, &code);
     try {
         app.parse(argc, argv);
     } catch (const CLI::CallForHelp& e) {
