@@ -10,6 +10,7 @@ packages=(
     libgtest-dev libbenchmark-dev
     python3 python3-mpmath time
     libopenmpi-dev openmpi-bin
+    python3-dev pybind11-dev gnuplot-nox clang libclang-rt-14-dev
 )
 missing=()
 for p in "${packages[@]}"; do
