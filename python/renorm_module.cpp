@@ -7,6 +7,8 @@
 #include <renorm/io/certificate_file.hpp>
 #include <renorm/newton/fixed_point.hpp>
 #include <renorm/solve/solve.hpp>
+#include <renorm/table/compute.hpp>
+#include <renorm/table/orders.hpp>
 #include <renorm/version.hpp>
 
 #include <pybind11/complex.h>
@@ -257,6 +259,46 @@ py::dict cascade_dict(const std::string& family, const std::string& map, const s
     return d;
 }
 
+py::list table_rows(const std::string& orders_spec, long digits, int eigenvalues, bool certify,
+                    int threads)
+{
+    const std::vector<std::string> orders = table::parse_orders(orders_spec);
+    table::RowOptions opt;
+    opt.digits = digits;
+    opt.eigenvalues = eigenvalues;
+    opt.certify = certify;
+    table::validate(orders, opt, memory_limit_bytes());
+    if (threads < 1 || threads > 256)
+        throw std::invalid_argument("threads must be in 1..256");
+    std::vector<io::TableRow> rows;
+    {
+        py::gil_scoped_release unlocked;
+        rows = table::compute_rows(orders, opt, threads);
+    }
+    py::list out;
+    for (const auto& r : rows) {
+        py::dict x;
+        x["order"] = r.order;
+        x["status"] = io::to_string(r.status);
+        x["alpha"] = r.alpha.text;
+        x["alpha_digits"] = r.alpha.digits;
+        x["delta"] = r.delta.text;
+        x["delta_digits"] = r.delta.digits;
+        py::list ev;
+        for (const auto& e : r.eigenvalues)
+            ev.append(py::make_tuple(e.value.text, e.value.digits, e.kind));
+        x["eigenvalues"] = ev;
+        x["radius"] = r.radius;
+        x["N"] = r.n;
+        x["N_check"] = r.n_check;
+        x["precision_bits"] = r.prec;
+        x["seconds"] = r.seconds;
+        x["note"] = r.note;
+        out.append(x);
+    }
+    return out;
+}
+
 } // namespace
 
 PYBIND11_MODULE(_renorm, m)
@@ -269,6 +311,8 @@ PYBIND11_MODULE(_renorm, m)
     m.def("verify", &verify_dict, py::arg("text"));
     m.def("cascade", &cascade_dict, py::arg("family"), py::arg("map"), py::arg("critical"),
           py::arg("order"), py::arg("levels"), py::arg("kind"));
+    m.def("table", &table_rows, py::arg("orders"), py::arg("digits"), py::arg("eigenvalues"),
+          py::arg("certify"), py::arg("threads"));
     m.def("cascade_families", &cascade::builtin_family_names);
     py::register_exception<cascade::ParseError>(m, "ExpressionError", PyExc_ValueError);
 }

@@ -25,7 +25,7 @@ git_commit = _renorm.git_commit
 __all__ = [
     "solve", "certify", "verify", "verify_file", "cascade", "cascade_families",
     "SolveResult", "Eigenvalue", "CertifyResult", "Verdict", "CascadeResult", "CascadeLevel",
-    "Limit", "ComputationError",
+    "Limit", "ComputationError", "table", "TableRow",
 ]
 
 
@@ -267,3 +267,34 @@ def cascade(family="quadratic", levels=10, order=2, map=None, critical=None,
     return CascadeResult(r["family"], r["formula"], r["kind"], r["critical_point"], ls,
                          r["failed"], r["failure"], Limit(**r["accumulation_point"]),
                          Limit(**r["delta"]), Limit(**r["alpha"]))
+
+
+@dataclass(frozen=True)
+class TableRow:
+    """One order of a table. status: 'certified' (enclosures, radius given), 'estimated'
+    (digits two truncations agree on) or 'failed' (reason in note)."""
+    order: str
+    status: str
+    alpha: str
+    alpha_digits: int
+    delta: str
+    delta_digits: int
+    eigenvalues: list  # (value, digits, kind) tuples
+    radius: str
+    N: int
+    N_check: int
+    precision_bits: int
+    seconds: float
+    note: str
+
+
+def table(orders, digits=30, eigenvalues=0, certify=False, threads=2):
+    """Rows of a reference table, one per order z. orders: a list of numbers, or the text the
+    command accepts ("2,4,6", ranges "A:B:STEP" such as "1.5:3:0.5"). A row that fails is kept
+    with status 'failed' and the reason in note."""
+    if not isinstance(orders, str):
+        orders = ",".join(_order_text(z) for z in orders)
+    rows = _renorm.table(orders, _int_arg("digits", digits, 1, 5000),
+                         _int_arg("eigenvalues", eigenvalues, 0, 50), bool(certify),
+                         _int_arg("threads", threads, 1, 256))
+    return [TableRow(**{**r, "eigenvalues": [tuple(e) for e in r["eigenvalues"]]}) for r in rows]

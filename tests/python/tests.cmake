@@ -1,7 +1,7 @@
 # Tests of the Python module (unittest, so that any interpreter can run them), one ctest test
 # per test class, with PYTHONPATH pointing at the package in the build tree.
 if(TARGET renorm_python)
-    foreach(cls Solve SolveOtherOrders BadInput CertifyVerify Cascade)
+    foreach(cls Solve SolveOtherOrders BadInput CertifyVerify Cascade Table)
         add_test(NAME python.${cls}
             COMMAND "${Python_EXECUTABLE}" -m unittest -v test_renorm.${cls}
             WORKING_DIRECTORY "${CMAKE_CURRENT_SOURCE_DIR}/python")
