@@ -18,6 +18,7 @@
 //  - z = 4: delta(4) = 7.28468622733..., alpha(4) = 1.690302971... (from memory); our
 //    delta_n for z = 4 decrease to 7.2846862172... (see notes in the report), so only the
 //    first 8 digits of delta(4) are asserted; the fixed-point solver will confirm.
+#include <renorm/cascade/period_doubling.hpp>
 #include <renorm/cascade/run.hpp>
 
 #include <gtest/gtest.h>
@@ -130,6 +131,8 @@ TEST(Cascade, FiniteLevelRatiosAreEnclosures)
     // but at n = 16 they already agree to 9 digits (the error is ~ delta^-n).
     const CascadeResult& q = run("quadratic", 16);
     const CascadeResult& l = run("logistic", 16);
+    ASSERT_FALSE(q.levels.empty());
+    ASSERT_FALSE(l.levels.empty());
     const CascadeLevel& a = q.levels.back();
     const CascadeLevel& b = l.levels.back();
     ASSERT_TRUE(a.has_delta && b.has_delta && a.has_alpha && b.has_alpha);
@@ -169,6 +172,7 @@ TEST(Cascade, TypedMapReproducesTheBuiltinQuadratic)
     const CascadeResult& builtin = run("quadratic", 16);
     ASSERT_FALSE(typed.failed) << typed.failure;
     ASSERT_EQ(typed.levels.size(), 10u);
+    ASSERT_GE(builtin.levels.size(), typed.levels.size());
     for (std::size_t i = 0; i < typed.levels.size(); ++i) {
         const CascadeLevel& a = typed.levels[i];
         const CascadeLevel& b = builtin.levels[i];
@@ -185,28 +189,49 @@ TEST(Cascade, TypedMapReproducesTheBuiltinQuadratic)
 TEST(Cascade, DoublingPointsOfTheLogisticMap)
 {
     // Classical facts (common practice): for mu x (1 - x) the fixed point loses stability at
-    // b_0 = 3 and the 2-cycle at b_1 = 1 + sqrt(6).
+    // b_0 = 3 and the 2-cycle at b_1 = 1 + sqrt(6). Both must lie in the certified enclosures.
     CascadeOptions o;
     o.kind = SequenceKind::doubling;
     o.levels = 12;
     CascadeResult r = run_cascade(make_builtin_family("logistic"), o);
     ASSERT_FALSE(r.failed) << r.failure;
     ASSERT_GE(r.levels.size(), 13u);
-    ball::Ball d;
-    arb_sub_ui(d.get(), r.levels[0].mu.get(), 3, 256);
-    EXPECT_LT(std::fabs(d.approx_double()), 1e-25);
+    EXPECT_TRUE(r.all_certified());
+    EXPECT_TRUE(ball::contains(r.levels[0].mu, ball::Ball(slong(3))))
+        << ball::enclosure_string(r.levels[0].mu, 30);
     ball::Ball s6;
-    arb_sqrt_ui(s6.get(), 6, 256);
-    arb_add_ui(s6.get(), s6.get(), 1, 256);
-    arb_sub(d.get(), r.levels[1].mu.get(), s6.get(), 256);
-    EXPECT_LT(std::fabs(d.approx_double()), 1e-25);
-    for (const auto& l : r.levels)
-        EXPECT_EQ(l.status, Status::not_certified); // estimates, never certified
-    // Same limit ratio as the superstable sequence.
+    arb_sqrt_ui(s6.get(), 6, 512);
+    arb_add_ui(s6.get(), s6.get(), 1, 512);
+    EXPECT_TRUE(ball::contains(r.levels[1].mu, s6)) << ball::enclosure_string(r.levels[1].mu, 30);
+    EXPECT_LT(r.levels[1].mu.radius_upper(), 1e-25);
+    // Same limit ratio and accumulation point as the superstable sequence.
     ASSERT_TRUE(r.delta_limit.ok);
     EXPECT_GE(agreeing_digits(r.delta_limit.value, delta_published), 9) << r.delta_limit.text;
-    // ... and the same accumulation point.
     EXPECT_GE(agreeing_digits(r.mu_limit.value, logistic_limit_published), 14) << r.mu_limit.text;
+    // Interlacing with the superstable parameters: mu_n < b_n < mu_{n+1}.
+    const CascadeResult& s = run("logistic", 16);
+    for (int n = 0; n + 1 < 12; ++n) {
+        EXPECT_TRUE(arb_lt(s.levels[n].mu.get(), r.levels[n].mu.get())) << n;
+        EXPECT_TRUE(arb_lt(r.levels[n].mu.get(), s.levels[n + 1].mu.get())) << n;
+    }
+}
+
+TEST(Cascade, DoublingPointProofFailsOffTheZero)
+{
+    // Negative test: a box around a point that is not a doubling point is not certified.
+    Family f = make_builtin_family("logistic");
+    ball::Ball x(0.5), mu(3.1); // b_0 = 3 is far away
+    DoublingCertificate c =
+        certify_doubling_point(f, 0, x, mu, ball::Ball(1e-10), ball::Ball(1e-10), 128);
+    EXPECT_EQ(c.status, Status::not_certified);
+    EXPECT_FALSE(c.mu.is_finite());
+    // The fixed point at b_0 = 3 is x = 2/3; a box around it is certified.
+    ball::Ball x0 = *ball::from_string("0.6666666666666666666666666666667", 128);
+    arb_get_mid_arb(x0.get(), x0.get());
+    DoublingCertificate ok =
+        certify_doubling_point(f, 0, x0, ball::Ball(slong(3)), ball::Ball(1e-20), ball::Ball(1e-20), 128);
+    EXPECT_EQ(ok.status, Status::certified) << ok.problem;
+    EXPECT_TRUE(ball::contains(ok.mu, ball::Ball(slong(3))));
 }
 
 TEST(Cascade, FailureKeepsTheEarlierLevels)

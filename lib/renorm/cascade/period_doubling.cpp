@@ -130,6 +130,8 @@ DoublingPoint approx_doubling_point(const Family& family, slong n, const ball::B
         arb_sub(mu.get(), mu.get(), mid_of(dmu).get(), prec);
         x = mid_of(x);
         mu = mid_of(mu);
+        out.last_dx = std::fabs(dx.approx_double()) + dx.radius_upper();
+        out.last_dmu = std::fabs(dmu.approx_double()) + dmu.radius_upper();
         if (std::fabs(dmu.approx_double()) <= tol_mu && std::fabs(dx.approx_double()) <= tol_x) {
             out.ok = true;
             out.mu = mu;
@@ -140,6 +142,86 @@ DoublingPoint approx_doubling_point(const Family& family, slong n, const ball::B
     out.problem = "Newton for the doubling point did not converge in " + std::to_string(max_iter) +
                   " steps";
     return out;
+}
+
+DoublingCertificate certify_doubling_point(const Family& family, slong n, const ball::Ball& x,
+                                           const ball::Ball& mu, const ball::Ball& rx,
+                                           const ball::Ball& rmu, slong prec)
+{
+    if (!arb_is_exact(x.get()) || !arb_is_exact(mu.get()))
+        throw std::invalid_argument("certify_doubling_point: the centre must be exact");
+    DoublingCertificate cert;
+    cert.prec = prec;
+    arb_indeterminate(cert.mu.get());
+    arb_indeterminate(cert.x.get());
+    DoublingSystem at_m = doubling_system(family, n, x, mu, prec);
+    if (!at_m.ok) {
+        cert.problem = at_m.problem;
+        return cert;
+    }
+    // The box X = [x +/- rx] x [mu +/- rmu] and X - m.
+    ball::Ball Xx = x, Xm = mu, dx, dm;
+    mag_t r;
+    mag_init(r);
+    arb_get_mag(r, rx.get());
+    mag_set(arb_radref(Xx.get()), r);
+    mag_set(arb_radref(dx.get()), r);
+    arb_get_mag(r, rmu.get());
+    mag_set(arb_radref(Xm.get()), r);
+    mag_set(arb_radref(dm.get()), r);
+    mag_clear(r);
+    DoublingSystem at_X = doubling_system(family, n, Xx, Xm, prec);
+    if (!at_X.ok) {
+        cert.problem = "box: " + at_X.problem;
+        return cert;
+    }
+    // Y = inverse of the midpoint Jacobian at m, rounded to exact numbers.
+    double a = at_m.j11.approx_double(), b = at_m.j12.approx_double();
+    double c = at_m.j21.approx_double(), d = at_m.j22.approx_double();
+    double det = a * d - b * c;
+    if (!std::isfinite(det) || det == 0) {
+        cert.problem = "singular Jacobian at the centre";
+        return cert;
+    }
+    // (doubles suffice: any Y is allowed by the theorem; the scale is set by the Jacobian)
+    ball::Ball y11(d / det), y12(-b / det), y21(-c / det), y22(a / det);
+    // K = m - Y G(m) + (I - Y J(X)) (X - m)
+    auto lin = [&](const ball::Ball& p, const ball::Ball& q, const ball::Ball& u,
+                   const ball::Ball& v) { // p u + q v
+        ball::Ball s, t;
+        arb_mul(s.get(), p.get(), u.get(), prec);
+        arb_mul(t.get(), q.get(), v.get(), prec);
+        arb_add(s.get(), s.get(), t.get(), prec);
+        return s;
+    };
+    ball::Ball yg1 = lin(y11, y12, at_m.g1, at_m.g2);
+    ball::Ball yg2 = lin(y21, y22, at_m.g1, at_m.g2);
+    // M = I - Y J(X)
+    ball::Ball m11 = lin(y11, y12, at_X.j11, at_X.j21), m12 = lin(y11, y12, at_X.j12, at_X.j22);
+    ball::Ball m21 = lin(y21, y22, at_X.j11, at_X.j21), m22 = lin(y21, y22, at_X.j12, at_X.j22);
+    arb_sub_ui(m11.get(), m11.get(), 1, prec);
+    arb_neg(m11.get(), m11.get());
+    arb_neg(m12.get(), m12.get());
+    arb_neg(m21.get(), m21.get());
+    arb_sub_ui(m22.get(), m22.get(), 1, prec);
+    arb_neg(m22.get(), m22.get());
+    ball::Ball K1 = lin(m11, m12, dx, dm), K2 = lin(m21, m22, dx, dm);
+    arb_sub(K1.get(), K1.get(), yg1.get(), prec);
+    arb_add(K1.get(), K1.get(), x.get(), prec);
+    arb_sub(K2.get(), K2.get(), yg2.get(), prec);
+    arb_add(K2.get(), K2.get(), mu.get(), prec);
+    cert.box_x = Xx;
+    cert.box_mu = Xm;
+    cert.krawczyk_x = K1;
+    cert.krawczyk_mu = K2;
+    if (!arb_contains_interior(Xx.get(), K1.get()) || !arb_contains_interior(Xm.get(), K2.get())) {
+        cert.problem = "Krawczyk test failed: K(X) is not inside X";
+        return cert;
+    }
+    cert.status = Status::certified;
+    cert.x = K1;
+    cert.mu = K2;
+    return cert;
 }
 
 } // namespace renorm::cascade

@@ -6,6 +6,7 @@
 
 #include <renorm/ball/ball.hpp>
 #include <renorm/cascade/family.hpp>
+#include <renorm/cascade/superstable.hpp>
 
 #include <string>
 
@@ -37,6 +38,8 @@ struct DoublingPoint {
     ball::Ball mu;  ///< b_n (exact midpoint; no guarantee)
     ball::Ball x;   ///< a point of the 2^n cycle at b_n, the one reached from c
     int iterations = 0;
+    double last_dx = 0;  ///< size of the last Newton step in x
+    double last_dmu = 0; ///< size of the last Newton step in mu
 };
 
 /// Newton for b_n: first Newton in x alone (f^N(x) = x at mu = mu_guess, from x_guess), then
@@ -46,5 +49,28 @@ struct DoublingPoint {
 DoublingPoint approx_doubling_point(const Family& family, slong n, const ball::Ball& mu_guess,
                                     const ball::Ball& x_guess, double spacing, int max_iter,
                                     slong prec);
+
+/// A proof that G(x, mu) = 0 (see doubling_system) has exactly one solution in a box.
+struct DoublingCertificate {
+    Status status = Status::not_certified;
+    ball::Ball x, mu;                 ///< the enclosures (NaN +/- inf unless certified)
+    ball::Ball box_x, box_mu;         ///< the box X
+    ball::Ball krawczyk_x, krawczyk_mu; ///< K(X)
+    slong prec = 0;
+    std::string problem;
+};
+
+/// Proves that G(x, mu) = (f^N(x) - x, (f^N)'(x) + 1) has exactly one zero in the box
+/// X = [x +/- rx] x [mu +/- rmu] by the Krawczyk test in two dimensions,
+///   K(X) = m - Y G(m) + (I - Y G'(X)) (X - m),  Y = inverse of mid G'(m) (any matrix is allowed),
+/// K(X) in the interior of X => one zero in X, and it lies in K(X) (Krawczyk 1969; Neumaier,
+/// Interval Methods for Systems of Equations, CUP 1990, Thm 5.1.8). G'(X) comes from
+/// doubling_system over the box, which encloses the Jacobian at every point of X.
+/// Encloses: b_n in `mu` and a point of the 2^n cycle at b_n in `x`.
+/// Returns not_certified (enclosures NaN) when K is not inside X or an orbit fails.
+/// Precision: `prec` bits. Throws std::invalid_argument when (x, mu) is not exact.
+DoublingCertificate certify_doubling_point(const Family& family, slong n, const ball::Ball& x,
+                                           const ball::Ball& mu, const ball::Ball& rx,
+                                           const ball::Ball& rmu, slong prec);
 
 } // namespace renorm::cascade

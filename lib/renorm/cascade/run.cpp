@@ -391,21 +391,34 @@ void run_doubling(const Family& family, const CascadeOptions& o, CascadeResult& 
         return;
     }
     const int first = sup.levels.front().n;
-    std::vector<double> b;
+    std::vector<ball::Ball> b; // exact midpoints of b_n
+    const slong gprec = level_prec(o, o.levels) + 64;
     for (int n = first; n <= o.levels; ++n) {
         auto t0 = Clock::now();
         const std::size_t k = b.size();
-        double guess, spacing;
+        ball::Ball guess;
+        double spacing;
         if (k < 2) {
             double m0 = sup.levels[k].mu.approx_double(), m1 = sup.levels[k + 1].mu.approx_double();
-            guess = m0 + 0.8 * (m1 - m0);
+            guess = ball::Ball(m0 + 0.8 * (m1 - m0));
             spacing = std::fabs(m1 - m0);
         } else {
-            double d = k >= 3 ? (b[k - 2] - b[k - 3]) / (b[k - 1] - b[k - 2]) : 4.0;
-            guess = b[k - 1] + (b[k - 1] - b[k - 2]) / d;
-            spacing = std::fabs(guess - b[k - 1]);
+            // b_n ~ b_{n-1} + (b_{n-1} - b_{n-2}) / delta, in ball arithmetic on exact values.
+            ball::Ball d1, d2, r, t;
+            arb_sub(d1.get(), b[k - 1].get(), b[k - 2].get(), gprec);
+            if (k >= 3) {
+                arb_sub(d2.get(), b[k - 2].get(), b[k - 3].get(), gprec);
+                arb_div(r.get(), d2.get(), d1.get(), gprec);
+            } else {
+                arb_set_ui(r.get(), 4);
+            }
+            arb_div(t.get(), d1.get(), r.get(), gprec);
+            arb_add(guess.get(), b[k - 1].get(), t.get(), gprec);
+            guess = mid_of(guess);
+            spacing = std::fabs(t.approx_double());
         }
         DoublingPoint dp;
+        DoublingCertificate cert;
         slong used = 0;
         bool hard = false;
         auto esc = ball::with_increasing_prec(level_prec(o, n), o.max_prec, [&](slong p) {
@@ -416,14 +429,26 @@ void run_doubling(const Family& family, const CascadeOptions& o, CascadeResult& 
                 hard = true;
                 return true;
             }
-            dp = approx_doubling_point(family, n, ball::Ball(guess), cp.c, spacing, o.max_newton, p);
+            dp = approx_doubling_point(family, n, guess, cp.c, spacing, o.max_newton, p);
             if (!dp.ok && dp.problem.rfind("precision", 0) != 0) {
                 hard = true;
                 return true;
             }
-            return dp.ok;
+            if (!dp.ok)
+                return false;
+            // The proof: a box a few Newton steps wide (256 times wider if that fails).
+            const int target = static_cast<int>(target_bits_below_spacing);
+            ball::Ball rx(4 * dp.last_dx + std::ldexp(family.x_hi - family.x_lo, -target - 8));
+            ball::Ball rmu(4 * dp.last_dmu + std::ldexp(spacing, -target - 8));
+            cert = certify_doubling_point(family, n, dp.x, dp.mu, rx, rmu, p);
+            if (cert.status != Status::certified) {
+                arb_mul_2exp_si(rx.get(), rx.get(), 8);
+                arb_mul_2exp_si(rmu.get(), rmu.get(), 8);
+                cert = certify_doubling_point(family, n, dp.x, dp.mu, rx, rmu, p);
+            }
+            return cert.status == Status::certified;
         });
-        if (!esc.succeeded || hard || !dp.ok) {
+        if (hard || !dp.ok) {
             res.failed = true;
             res.failed_level = n;
             res.failure = "level " + std::to_string(n) + ": " + dp.problem;
@@ -432,13 +457,20 @@ void run_doubling(const Family& family, const CascadeOptions& o, CascadeResult& 
         CascadeLevel lev;
         lev.n = n;
         lev.period = std::uint64_t(1) << n;
-        lev.status = Status::not_certified;
-        lev.mu = dp.mu;
         lev.prec = used;
-        lev.note = "estimate (Newton, not certified)";
-        const double m = dp.mu.approx_double();
+        if (esc.succeeded && cert.status == Status::certified) {
+            lev.status = Status::certified;
+            lev.mu = cert.mu;
+        } else {
+            lev.status = Status::not_certified;
+            lev.mu = dp.mu;
+            lev.note = "not certified: " + cert.problem;
+        }
+        ball::Ball m = mid_of(lev.mu);
         if (k >= 2) {
-            double s1 = b[k - 1] - b[k - 2], s2 = m - b[k - 1];
+            ball::Ball s2b;
+            arb_sub(s2b.get(), m.get(), b[k - 1].get(), gprec);
+            double s1 = b[k - 1].approx_double() - b[k - 2].approx_double(), s2 = s2b.approx_double();
             if (!(s1 * s2 > 0) || !(std::fabs(s1 / s2) > 1.2) || !(std::fabs(s1 / s2) < 1000)) {
                 res.failed = true;
                 res.failed_level = n;

@@ -18,7 +18,7 @@ namespace renorm::cascade {
 /// Which sequence of parameters to compute.
 enum class SequenceKind {
     superstable, ///< mu_n: c lies on a cycle of period 2^n (certified by Krawczyk)
-    doubling,    ///< b_n: the 2^n cycle has multiplier -1 (Newton only: estimates)
+    doubling,    ///< b_n: the 2^n cycle has multiplier -1 (certified by a 2x2 Krawczyk test)
 };
 
 /// Settings of run_cascade.
@@ -39,7 +39,7 @@ inline constexpr int max_cascade_level = 34;
 struct CascadeLevel {
     int n = 0;
     std::uint64_t period = 1;   ///< 2^n
-    Status status = Status::not_certified; ///< doubling points are never certified
+    Status status = Status::not_certified;
     ball::Ball mu;              ///< the parameter: an enclosure when certified, else the estimate
     ball::Ball d;               ///< d_n = f^(2^(n-1))(c) - c (superstable, n >= 1)
     bool has_d = false;
