@@ -347,16 +347,25 @@ SuperstableLevel certify_superstable_from(const Family& family, const ball::Ball
         out.cert = cert;
         out.mu_approx = mid_of(cert.mu);
         if (cert.mu.radius_upper() <= want_radius || round == 3) {
-            if (n >= 1) {
-                // d_n over the (small) enclosure K: tighter than over the box X.
+            // d_n over the box X is used as it is when its relative radius is below 2^-64;
+            // otherwise it is recomputed over the (much smaller) enclosure K.
+            mag_t rel;
+            mag_init(rel);
+            arb_get_mag_lower(rel, out.cert.half.get());
+            const bool box_is_tight = arb_is_finite(out.cert.half.get()) && !mag_is_zero(rel) &&
+                                      out.cert.half.radius_upper() <
+                                          std::ldexp(mag_get_d(rel), -64);
+            mag_clear(rel);
+            if (n >= 1 && !box_is_tight) {
                 ball::Ball h = superstable_half(family, c, n, cert.mu, prec);
                 out.passes += 1; // half a pass, counted as one
                 ball::Ball both;
                 if (h.is_finite() && arb_intersection(both.get(), h.get(), out.cert.half.get(), prec))
                     out.cert.half = both;
-                out.half_approx = mid_of(out.cert.half);
                 out.cert.exact_period = !arb_contains_zero(out.cert.half.get());
             }
+            if (n >= 1)
+                out.half_approx = mid_of(out.cert.half);
             if (cert.mu.radius_upper() > want_radius)
                 out.problem = "certified radius above spacing * 2^-" + std::to_string(target);
             return out;

@@ -110,8 +110,8 @@ struct SuperstableLevel {
 /// Certifies the zero that approx_superstable found: certify_superstable on a box of radius
 /// 4 |step| around the Newton point (256 times larger if that fails), then, while the radius
 /// of K is above spacing * 2^-target_bits_below_spacing, again around the middle of K (at most
-/// four rounds). Finally encloses d_n over K (superstable_half) and checks that it excludes 0
-/// (exact period 2^n). The guarantee is in `cert` (status certified); see certify_superstable.
+/// four rounds). Finally encloses d_n (over X, or over K by superstable_half when the box gives
+/// a relative radius above 2^-64) and checks that it excludes 0 (exact period 2^n). The guarantee is in `cert` (status certified); see certify_superstable.
 SuperstableLevel certify_superstable_from(const Family& family, const ball::Ball& c, slong n,
                                           const SuperstableNewton& newton, double spacing,
                                           slong prec);
