@@ -26,6 +26,9 @@ struct CertifyArgs {
     std::vector<double> disc;
 };
 
+std::string sci(const series::Bound& b) { return b.text(3); }
+std::string rad(const ball::Ball& x) { return series::Bound::radius_of(x).text(3); }
+
 std::string sci(double x)
 {
     char buf[32];
@@ -95,8 +98,15 @@ int run_certify(const CertifyArgs& a)
 
     bool enough = false;
     if (c.status == certify::Status::certified) {
-        const double need = std::pow(10.0, -a.digits);
-        enough = c.alpha.radius_upper() < need && c.delta.radius_upper() < need;
+        // radius < 10^-digits, compared exactly (mag against a lower bound of 10^-digits)
+        ball::Ball need;
+        arb_set_ui(need.get(), 10);
+        arb_pow_ui(need.get(), need.get(), static_cast<ulong>(a.digits), 64);
+        arb_inv(need.get(), need.get(), 64);
+        series::Bound lower;
+        arb_get_mag_lower(lower.get(), need.get());
+        enough = series::Bound::radius_of(c.alpha) < lower &&
+                 series::Bound::radius_of(c.delta) < lower;
     }
     std::string written;
     if (enough && !a.out.empty()) {
@@ -115,19 +125,19 @@ int run_certify(const CertifyArgs& a)
         j["disc"] = {{"centre", problem.disc.centre}, {"radius", problem.disc.radius}};
         j["prec"] = c.data.prec;
         j["seconds"] = {{"solve", t_solve}, {"proof", t_proof}};
-        j["fixed_point"] = {{"Y", c.fixed_point.y.approx_double()},
-                            {"Z", c.fixed_point.z.approx_double()},
-                            {"rho", c.data.rho_g.approx_double()}};
-        j["eigenpair"] = {{"Y", c.eigen.y.approx_double()},
+        j["fixed_point"] = {{"Y", c.fixed_point.y.text(7)},
+                            {"Z", c.fixed_point.z.text(7)},
+                            {"rho", c.data.rho_g.text(7)}};
+        j["eigenpair"] = {{"Y", c.eigen.y.text(7)},
                           {"Z0", c.eigen.z0.approx_double()},
                           {"Z1", c.eigen.z1.approx_double()},
-                          {"rho", c.data.rho_e.approx_double()}};
+                          {"rho", c.data.rho_e.text(7)}};
         if (c.status == certify::Status::certified) {
             j["alpha"] = {{"digits", digits_text(c.alpha, a.digits + 30)},
-                          {"radius", c.alpha.radius_upper()},
+                          {"radius", rad(c.alpha)},
                           {"certified", true}};
             j["delta"] = {{"digits", digits_text(c.delta, a.digits + 30)},
-                          {"radius", c.delta.radius_upper()},
+                          {"radius", rad(c.delta)},
                           {"certified", true}};
         }
         if (!written.empty())
@@ -139,21 +149,21 @@ int run_certify(const CertifyArgs& a)
                   << " bits (Y) / " << c.data.prec_low << " bits (Z); solve " << sci(t_solve)
                   << " s, proof " << sci(t_proof) << " s\n";
         if (c.fixed_point.y.is_finite())
-            std::cout << "fixed point:  Y = " << sci(c.fixed_point.y.approx_double())
-                      << "  Z = " << sci(c.fixed_point.z.approx_double())
-                      << "  rho = " << sci(c.data.rho_g.approx_double())
+            std::cout << "fixed point:  Y = " << sci(c.fixed_point.y)
+                      << "  Z = " << sci(c.fixed_point.z)
+                      << "  rho = " << sci(c.data.rho_g)
                       << (c.fixed_point.closes ? "  (Y + Z rho < rho holds)" : "") << "\n";
         if (c.eigen.y.is_finite())
-            std::cout << "eigenpair:    Y = " << sci(c.eigen.y.approx_double())
+            std::cout << "eigenpair:    Y = " << sci(c.eigen.y)
                       << "  Z = " << sci(c.eigen.z0.approx_double()) << " + "
                       << sci(c.eigen.z1.approx_double()) << " rho  rho = "
-                      << sci(c.data.rho_e.approx_double())
+                      << sci(c.data.rho_e)
                       << (c.eigen.closes ? "  (Y + Z rho < rho holds)" : "") << "\n";
         if (c.status == certify::Status::certified) {
             std::cout << "alpha = " << digits_text(c.alpha, a.digits + 30)
-                      << "  [certified, radius " << sci(c.alpha.radius_upper()) << "]\n";
+                      << "  [certified, radius " << rad(c.alpha) << "]\n";
             std::cout << "delta = " << digits_text(c.delta, a.digits + 30)
-                      << "  [certified, radius " << sci(c.delta.radius_upper()) << "]\n";
+                      << "  [certified, radius " << rad(c.delta) << "]\n";
         }
     }
     if (c.status != certify::Status::certified) {

@@ -5,6 +5,7 @@
 #include <cmath>
 #include <complex>
 #include <stdexcept>
+#include <vector>
 
 namespace renorm::certify {
 
@@ -86,29 +87,45 @@ Bound residual_norm(const BallMat& a, const BallPoly& x, const Ball* extra, cons
 
 std::string mag_text(const Bound& b)
 {
-    char buf[64];
-    std::snprintf(buf, sizeof buf, "%.3g", b.approx_double());
-    return buf;
+    return b.text(3);
 }
 
 /// The fixed-point bounds at the radius rho. Writes the failing hypothesis into *why.
-FixedPointBounds fixed_point_bounds(const ProofData& pd, const Bound& rho, Mutation mut,
-                                    std::string* why)
-{
-    FixedPointBounds fb;
-    const slong n = pd.n;
-    // Y: the exact residual G0 - T(G0) at high precision.
-    Models hi = detail::compute_models(pd.problem, pd.g0, Bound(), n, true, mut, pd.prec);
-    if (!hi.ok) {
-        *why = "hypothesis failed at G0: " + hi.failure;
-        return fb;
-    }
-    TaylorModel f0 = tm_sub(hi.g, hi.t, pd.prec);
-    fb.residual_eps = f0.eps;
+/// The high-precision part of the fixed-point proof, which does not depend on rho: the residual
+/// G0 - T(G0) and the derivative check. Computed once per proof.
+struct HighPart {
+    bool done = false;
+    bool ok = false;
+    std::string why;
+    TaylorModel f0;
+    Bound derivative_check;
+};
 
-    // Guard: DT h against (T(G0 + e h) - T(G0)) / e for a few directions h.
+void high_part(const ProofData& pd, Mutation mut, HighPart& hp)
+{
+    hp.done = true;
+    const slong n = pd.n;
+    // The exact residual G0 - T(G0) at high precision.
+    Models hi = detail::compute_models(pd.problem, pd.g0, Bound(), n, false, mut, pd.prec);
+    if (!hi.ok) {
+        hp.why = "hypothesis failed at G0: " + hi.failure;
+        return;
+    }
+    hp.f0 = tm_sub(hi.g, hi.t, pd.prec);
+
+    // Guard: DT h against (T(G0 + e h) - T(G0)) / e for a few directions h. Not a bound of the
+    // proof, so it runs at a moderate precision pc (first-order agreement needs few bits).
     {
-        const slong e_exp = -(pd.prec / 3);
+        // (At pc bits the models drop coefficients below 2^-pc relative, so this pass is cheap.)
+        const slong pc = std::max<slong>(pd.prec_low, 192);
+        const slong nc = n;
+        const BallPoly& gc = pd.g0;
+        Models hc = detail::compute_models(pd.problem, gc, Bound(), nc, true, mut, pc);
+        if (!hc.ok) {
+            hp.why = "derivative check: " + hc.failure;
+            return;
+        }
+        const slong e_exp = -(pc / 3);
         Ball e;
         arb_set_si(e.get(), 1);
         arb_mul_2exp_si(e.get(), e.get(), e_exp);
@@ -116,33 +133,51 @@ FixedPointBounds fixed_point_bounds(const ProofData& pd, const Bound& rho, Mutat
         arb_set_si(inv_e.get(), 1);
         arb_mul_2exp_si(inv_e.get(), inv_e.get(), -e_exp);
         Bound worst;
-        const slong dirs[] = {0, 1, 2, std::min<slong>(5, n - 1), n / 2};
+        const slong dirs[] = {0, 1, 2, std::min<slong>(5, nc - 1), nc / 2};
         for (slong k : dirs) {
             BallPoly h;
             h.set_coeff(k, Ball(slong{1}));
-            BallPoly g1 = pd.g0;
+            BallPoly g1 = gc;
             BallPoly eh;
-            arb_poly_scalar_mul(eh.get(), h.get(), e.get(), pd.prec);
-            arb_poly_add(g1.get(), g1.get(), eh.get(), pd.prec);
-            Models moved = detail::compute_models(pd.problem, g1, Bound(), n, false, mut, pd.prec);
+            arb_poly_scalar_mul(eh.get(), h.get(), e.get(), pc);
+            arb_poly_add(g1.get(), g1.get(), eh.get(), pc);
+            Models moved = detail::compute_models(pd.problem, g1, Bound(), nc, false, mut, pc);
             if (!moved.ok) {
-                *why = "derivative check: " + moved.failure;
-                return fb;
+                hp.why = "derivative check: " + moved.failure;
+                return;
             }
-            TaylorModel q = tm_scalar_mul(tm_sub(moved.t, hi.t, pd.prec), inv_e, pd.prec);
-            TaylorModel dth = detail::apply_derivative(hi, h, pd.prec);
-            worst = series::max(worst, tm_norm(tm_sub(q, dth, pd.prec)));
+            TaylorModel q = tm_scalar_mul(tm_sub(moved.t, hc.t, pc), inv_e, pc);
+            TaylorModel dth = detail::apply_derivative(hc, h, pc);
+            worst = series::max(worst, tm_norm(tm_sub(q, dth, pc)));
         }
-        fb.derivative_check = worst;
+        hp.derivative_check = worst;
         // Second-order terms are O(e) = 2^(-prec/3); a wrong formula gives O(1).
         Bound limit;
-        mag_set_ui_2exp_si(limit.get(), 1, -(pd.prec / 6));
+        mag_set_ui_2exp_si(limit.get(), 1, -(pc / 6));
         if (!(worst < limit)) {
-            *why = "derivative check: ||(T(G0 + e h) - T(G0))/e - DT(G0) h|| = " +
-                   mag_text(worst) + " is not O(e): DT is not the derivative of T";
-            return fb;
+            hp.why = "derivative check: ||(T(G0 + e h) - T(G0))/e - DT(G0) h|| = " +
+                     mag_text(worst) + " is not O(e): DT is not the derivative of T";
+            return;
         }
     }
+    hp.ok = true;
+}
+
+/// The fixed-point bounds at the radius rho. Writes the failing hypothesis into *why.
+FixedPointBounds fixed_point_bounds(const ProofData& pd, HighPart& hp, const Bound& rho,
+                                    Mutation mut, std::string* why)
+{
+    FixedPointBounds fb;
+    const slong n = pd.n;
+    if (!hp.done)
+        high_part(pd, mut, hp);
+    if (!hp.ok) {
+        *why = hp.why;
+        return fb;
+    }
+    const TaylorModel& f0 = hp.f0;
+    fb.residual_eps = f0.eps;
+    fb.derivative_check = hp.derivative_check;
 
     // Z: the derivative over the whole ball, at low precision.
     Models lo = detail::compute_models(pd.problem, pd.g0, rho, n, true, mut, pd.prec_low);
@@ -316,7 +351,8 @@ Certificate run_recheck(const ProofData& data, Mutation mut)
         c.message = why;
         return c;
     }
-    c.fixed_point = fixed_point_bounds(data, data.rho_g, mut, &why);
+    HighPart hp;
+    c.fixed_point = fixed_point_bounds(data, hp, data.rho_g, mut, &why);
     if (!c.fixed_point.closes) {
         c.message = why;
         return c;
@@ -351,7 +387,8 @@ Certificate run_certify(const doubling::Problem& problem, const BallPoly& g0, sl
         return c;
     }
     // Fixed point: bounds at rho = 0 choose rho, then the check at rho itself.
-    FixedPointBounds first = fixed_point_bounds(pd, Bound(), mut, &why);
+    HighPart hp;
+    FixedPointBounds first = fixed_point_bounds(pd, hp, Bound(), mut, &why);
     if (!first.y.is_finite() || !first.z.is_finite() || !(first.z < Bound(1.0))) {
         c.fixed_point = first;
         c.message = why.empty() ? "fixed point: Z < 1 fails (Z = " + mag_text(first.z) + ")" : why;
@@ -359,7 +396,7 @@ Certificate run_certify(const doubling::Problem& problem, const BallPoly& g0, sl
     }
     pd.rho_g = choose_radius(first.y, first.z, 1.5);
     why.clear();
-    c.fixed_point = fixed_point_bounds(pd, pd.rho_g, mut, &why);
+    c.fixed_point = fixed_point_bounds(pd, hp, pd.rho_g, mut, &why);
     if (!c.fixed_point.closes) {
         c.message = why;
         return c;
@@ -379,11 +416,13 @@ Certificate run_certify(const doubling::Problem& problem, const BallPoly& g0, sl
         c.message = why.empty() ? "eigenpair: Z < 1 fails (Z = " + mag_text(e0.z0) + ")" : why;
         return c;
     }
+    // The eigenpair bounds do not depend on rho_e (Z = z0 + z1 rho_e): only the check does.
     pd.rho_e = choose_radius(e0.y, e0.z0, 1.5);
-    why.clear();
-    c.eigen = eigen_bounds(pd, pd.rho_e, mut, &why);
+    c.eigen = e0;
+    c.eigen.closes = radii_closes(e0.y, e0.z0 + e0.z1 * pd.rho_e, pd.rho_e);
     if (!c.eigen.closes) {
-        c.message = why;
+        c.message = "eigenpair: Y + Z rho < rho fails (Y = " + mag_text(e0.y) + ", Z = " +
+                    mag_text(e0.z0 + e0.z1 * pd.rho_e) + ", rho = " + mag_text(pd.rho_e) + ")";
         return c;
     }
     enclose(c);
@@ -505,45 +544,54 @@ ApproxEigen approx_eigenpair(const doubling::Problem& problem, const BallPoly& g
     v /= v(jmax);
     double lam = es.eigenvalues()(best).real();
 
-    // Newton on (M h - lambda h, h_j - 1) = 0 at precision prec (midpoint arithmetic).
+    // Chord iteration on F(h, lambda) = (M h - lambda h, h_j - 1) = 0: F at precision prec, the
+    // Jacobian [[M - lambda I, -h], [e_j^T, 0]] factored at a moderate precision and refactored
+    // every few steps (midpoint arithmetic; no guarantee).
     BallMat mid(n, n);
     arb_mat_get_mid(mid.get(), m.get());
     BallMat x(n + 1, 1);
     for (slong k = 0; k < n; ++k)
         arb_set_d(x.entry(k, 0), v(k));
     arb_set_d(x.entry(n, 0), lam);
-    for (int it = 0; it < 40; ++it) {
-        BallMat jac(n + 1, n + 1), f(n + 1, 1), hx(n, 1);
+    const slong lu_prec = std::min<slong>(prec, 256);
+    BallMat lu(n + 1, n + 1);
+    std::vector<slong> perm(static_cast<size_t>(n + 1));
+    bool converged = false;
+    for (int it = 0; it < 400 && !converged; ++it) {
+        if (it % 6 == 0) {
+            BallMat jac(n + 1, n + 1);
+            for (slong i = 0; i < n; ++i) {
+                for (slong k = 0; k < n; ++k)
+                    arb_set_round(jac.entry(i, k), mid.entry(i, k), lu_prec);
+                arb_sub(jac.entry(i, i), jac.entry(i, i), x.entry(n, 0), lu_prec);
+                arb_neg_round(jac.entry(i, n), x.entry(i, 0), lu_prec);
+            }
+            arb_one(jac.entry(n, out.index));
+            arb_mat_get_mid(jac.get(), jac.get());
+            if (!arb_mat_approx_lu(perm.data(), lu.get(), jac.get(), lu_prec)) {
+                out.message = "the eigen-Newton Jacobian is singular";
+                return out;
+            }
+        }
+        BallMat hx(n, 1), mh(n, 1), f(n + 1, 1);
         for (slong k = 0; k < n; ++k)
             arb_set(hx.entry(k, 0), x.entry(k, 0));
-        BallMat mh(n, 1);
         arb_mat_approx_mul(mh.get(), mid.get(), hx.get(), prec);
         for (slong i = 0; i < n; ++i) {
             arb_set(f.entry(i, 0), mh.entry(i, 0));
             arb_submul(f.entry(i, 0), x.entry(n, 0), x.entry(i, 0), prec);
-            for (slong k = 0; k < n; ++k)
-                arb_set(jac.entry(i, k), mid.entry(i, k));
-            arb_sub(jac.entry(i, i), jac.entry(i, i), x.entry(n, 0), prec);
-            arb_neg(jac.entry(i, n), x.entry(i, 0));
         }
         arb_sub_ui(f.entry(n, 0), x.entry(out.index, 0), 1, prec);
-        arb_one(jac.entry(n, out.index));
         arb_mat_get_mid(f.get(), f.get());
-        arb_mat_get_mid(jac.get(), jac.get());
         BallMat dx(n + 1, 1);
-        if (!arb_mat_approx_solve(dx.get(), jac.get(), f.get(), prec)) {
-            out.message = "the eigen-Newton step is singular";
-            return out;
-        }
+        arb_mat_approx_solve_lu_precomp(dx.get(), perm.data(), lu.get(), f.get(), prec);
         arb_mat_sub(x.get(), x.get(), dx.get(), prec);
         arb_mat_get_mid(x.get(), x.get());
         mag_t dn;
         mag_init(dn);
         arb_get_mag(dn, dx.entry(n, 0));
-        const bool small = mag_cmp_2exp_si(dn, -prec + 16) < 0;
+        converged = mag_cmp_2exp_si(dn, -prec + 16) < 0 && it >= 2;
         mag_clear(dn);
-        if (small && it >= 2)
-            break;
     }
     for (slong k = 0; k < n; ++k)
         out.h.set_coeff(k, Ball(x.entry(k, 0)));

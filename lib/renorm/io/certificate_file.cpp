@@ -21,9 +21,7 @@ constexpr slong max_prec = 400000;
 
 json bound_json(const Bound& b)
 {
-    char buf[64];
-    std::snprintf(buf, sizeof buf, "%.6e", b.approx_double());
-    return json{{"exact", ball::dump(b.to_ball())}, {"approx", buf}};
+    return json{{"exact", ball::dump(b.to_ball())}, {"approx", b.text(7)}};
 }
 
 std::string fmpz_text(const fmpz_t z)
@@ -63,10 +61,10 @@ std::string decimal_round(const arf_t x, slong places, bool up)
 /// Decimal places that show the digits an enclosure determines, plus two.
 slong places_for(const ball::Ball& x)
 {
-    const double r = x.radius_upper();
-    if (!(r > 0) || !std::isfinite(r))
+    const double l = Bound::radius_of(x).approx_log10();
+    if (!std::isfinite(l))
         return 30;
-    return std::clamp<slong>(static_cast<slong>(std::floor(-std::log10(r))) + 2, 10, 100000);
+    return std::clamp<slong>(static_cast<slong>(std::floor(-l)) + 2, 10, 100000);
 }
 
 json claim_json(const ball::Ball& x, const std::string& statement)
@@ -195,7 +193,7 @@ void check_recorded(const json& bounds, const char* key, const Bound& recomputed
     if (recorded < recomputed)
         throw Reject{std::string("the recorded bound ") + key +
                          " is smaller than the recomputed one (" +
-                         std::to_string(recomputed.approx_double()) + ")",
+                         recomputed.text(7) + ")",
                      false};
 }
 

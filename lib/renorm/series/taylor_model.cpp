@@ -1,8 +1,11 @@
 #include <renorm/series/taylor_model.hpp>
 
+#include <algorithm>
 #include <stdexcept>
 
 namespace renorm::series {
+
+slong tm_drop_guard_bits = 16;
 
 namespace {
 void check_prec(slong prec)
@@ -12,20 +15,39 @@ void check_prec(slong prec)
 }
 
 /// Splits q into its coefficients of degree < n (returned) and adds the l1 norm of the rest
-/// to eps.
-BallPoly split(const BallPoly& q, slong n, Bound& eps)
+/// to eps. Trailing coefficients below 2^-(prec + tm_drop_guard_bits) times the largest one
+/// also move into eps (they are below the working precision; dropping them keeps products
+/// short at low precision, where they would otherwise dominate the cost).
+BallPoly split(const BallPoly& q, slong n, Bound& eps, slong prec)
 {
-    const slong len = q.length();
-    if (len <= n)
-        return q;
-    mag_t t;
+    const slong len = std::min(q.length(), n);
+    mag_t t, big, cut;
     mag_init(t);
-    for (slong k = n; k < len; ++k) {
+    mag_init(big);
+    mag_init(cut);
+    for (slong k = 0; k < len; ++k) {
+        arb_get_mag(t, q.get()->coeffs + k);
+        if (mag_cmp(t, big) > 0)
+            mag_set(big, t);
+    }
+    mag_mul_2exp_si(cut, big, -(prec + tm_drop_guard_bits));
+    slong keep = len;
+    while (keep > 1) {
+        arb_get_mag(t, q.get()->coeffs + keep - 1);
+        if (mag_cmp(t, cut) >= 0 || !mag_is_finite(t))
+            break;
+        --keep;
+    }
+    for (slong k = keep; k < q.length(); ++k) {
         arb_get_mag(t, q.get()->coeffs + k);
         mag_add(eps.get(), eps.get(), t);
     }
+    mag_clear(cut);
+    mag_clear(big);
     mag_clear(t);
-    return truncated(q, n);
+    if (keep >= q.length())
+        return q;
+    return truncated(q, keep);
 }
 
 /// An upper bound for |x| + |y|.
@@ -109,7 +131,7 @@ TaylorModel tm_from_poly(const BallPoly& f, slong n, slong prec)
         throw std::invalid_argument("tm_from_poly: n must be >= 1");
     TaylorModel m;
     m.n = n;
-    m.p = split(f, n, m.eps);
+    m.p = split(f, n, m.eps, prec);
     return m;
 }
 
@@ -131,7 +153,7 @@ TaylorModel tm_add(const TaylorModel& f, const TaylorModel& g, slong prec)
     BallPoly s;
     arb_poly_add(s.get(), f.p.get(), g.p.get(), prec);
     m.eps = f.eps + g.eps;
-    m.p = split(s, m.n, m.eps);
+    m.p = split(s, m.n, m.eps, prec);
     return m;
 }
 
@@ -143,7 +165,7 @@ TaylorModel tm_sub(const TaylorModel& f, const TaylorModel& g, slong prec)
     BallPoly s;
     arb_poly_sub(s.get(), f.p.get(), g.p.get(), prec);
     m.eps = f.eps + g.eps;
-    m.p = split(s, m.n, m.eps);
+    m.p = split(s, m.n, m.eps, prec);
     return m;
 }
 
@@ -177,7 +199,7 @@ TaylorModel tm_mul(const TaylorModel& f, const TaylorModel& g, slong prec)
     // (pf + Ef)(pg + Eg) = pf pg + pf Eg + Ef pg + Ef Eg, each cross term by (B1).
     Bound nf = poly_norm(f.p), ng = poly_norm(g.p);
     m.eps = nf * g.eps + ng * f.eps + f.eps * g.eps;
-    m.p = split(full, m.n, m.eps);
+    m.p = split(full, m.n, m.eps, prec);
     return m;
 }
 

@@ -23,6 +23,9 @@
 #include <renorm/ball/ball.hpp>
 #include <renorm/series/series.hpp>
 
+#include <cmath>
+#include <string>
+
 namespace renorm::series {
 
 /// An upper bound: owning wrapper over mag_t (Arb's unsigned floating-point upper bounds;
@@ -58,6 +61,32 @@ public:
         arf_set_mag(arb_midref(b.get()), m_x);
         return b;
     }
+    /// Decimal text with `digits` significant digits (any exponent; doubles would underflow).
+    /// No guarantee (display only).
+    std::string text(slong digits = 3) const
+    {
+        if (!is_finite())
+            return "inf";
+        Ball b = to_ball();
+        char* s = arb_get_str(b.get(), digits, ARB_STR_NO_RADIUS);
+        std::string out(s);
+        flint_free(s);
+        return out;
+    }
+    /// An approximation of log10 of the bound (-inf for 0). No guarantee (parameter choice).
+    double approx_log10() const
+    {
+        if (mag_is_zero(m_x))
+            return -HUGE_VAL;
+        return mag_get_d_log2_approx(m_x) * 0.30102999566398120;
+    }
+    /// The radius of a ball (an upper bound, exact as stored).
+    static Bound radius_of(const Ball& x)
+    {
+        Bound b;
+        mag_set(b.m_x, arb_radref(x.get()));
+        return b;
+    }
     static Bound infinite()
     {
         Bound b;
@@ -90,6 +119,10 @@ inline Bound operator*(const Bound& x, const Bound& y)
 }
 inline bool operator<(const Bound& x, const Bound& y) { return mag_cmp(x.get(), y.get()) < 0; }
 inline Bound max(const Bound& x, const Bound& y) { return x < y ? y : x; }
+
+/// Trailing coefficients below 2^-(prec + tm_drop_guard_bits) times the largest coefficient
+/// are moved into the remainder by every operation (tunable; any value is rigorous).
+extern slong tm_drop_guard_bits;
 
 /// A Taylor model (see the file comment): p of degree < n plus any E with ||E|| <= eps.
 struct TaylorModel {

@@ -22,7 +22,8 @@ Models compute_models(const doubling::Problem& problem, const BallPoly& g0, cons
     const series::Disc& d = problem.disc;
     Ball z = problem.order_ball(prec);
     Ball c(d.centre), r(d.radius), one(slong{1}), zero;
-    md.g = tm_from_poly(g0, n, prec);
+    // G0 rounded to the working precision (an enclosure; keeps low-precision passes cheap).
+    md.g = tm_round(tm_from_poly(g0, n, prec), prec);
     md.g.eps = md.g.eps + rho;
 
     // s at y = 1 and y = 0; evaluation at s needs |s| <= 1.
