@@ -6,8 +6,8 @@
 /// (a Banach algebra; ||f|| bounds sup_D |f|).
 ///
 /// Theorem used (contraction mapping in the "radii polynomial" form of the Newton-Kantorovich
-/// theorem; e.g. Yamamoto, SIAM J. Numer. Anal. 35 (1998); van den Berg & Lessard, Notices
-/// AMS 62 (2015); Lanford, Bull. AMS 6 (1982) for this operator): let F: U -> X be C^1 on an
+/// theorem; e.g. Kantorovich & Akilov, Functional Analysis, ch. XVIII; van den Berg & Lessard,
+/// Notices AMS 62 (2015)): let F: U -> X be C^1 on an
 /// open U containing the closed ball B = B(x0, rho), A a bounded linear operator, and
 ///     ||A F(x0)|| <= Y,   sup_{x in B} ||I - A DF(x)|| <= Z,   Y + Z rho < rho.
 /// Then x -> x - A F(x) maps B into itself and is a contraction there (constant Z < 1), A is

@@ -10,8 +10,8 @@
 /// moved into eps, never lost. An infinite eps means "no bound" (a hypothesis of the
 /// operation failed); callers test is_finite().
 ///
-/// The bounds used (all elementary, e.g. Lanford, Bull. AMS 6 (1982), and any text on Taylor
-/// models, Makino & Berz, Int. J. Pure Appl. Math. 4 (2003)):
+/// The bounds used (all elementary; for Taylor models in general see Makino & Berz,
+/// Int. J. Pure Appl. Math. 4 (2003)):
 ///   (B1) ||fg|| <= ||f|| ||g||                                  (Banach algebra)
 ///   (B2) ||E o h|| <= ||E||            when ||h|| <= 1          (sum |E_k| ||h||^k)
 ///   (B3) ||p(x + e) - p(x)|| <= ||e|| sum_k k |p_k| R^(k-1),   R >= ||x|| + ||e||
