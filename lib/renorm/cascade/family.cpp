@@ -256,7 +256,8 @@ CriticalPoint critical_point(const Family& family, slong prec)
     arb_add(K.get(), K.get(), t.get(), prec);
     if (!arb_contains_interior(X.get(), K.get())) {
         out.problem = "could not prove the zero of df/dx (Krawczyk test failed at " +
-                      std::to_string(prec) + " bits)";
+                      std::to_string(prec) +
+                      " bits; a critical point where f'' vanishes needs --critical)";
         return out;
     }
     if (!derivative_vanishes(family, K, prec, &out.problem))
