@@ -26,6 +26,7 @@ struct SolveArgs {
     bool json = false;
     bool quiet = false;
     std::string coefficients;
+    std::string basis = "auto";
 };
 
 std::string eigen_text(const solve::EigenvalueReport& e)
@@ -58,15 +59,20 @@ std::string coefficients_json(const solve::Result& r, slong digits)
     j["format"] = "renorm-coefficients";
     j["version"] = 1;
     j["order"] = r.problem.order;
-    j["disc"] = {{"centre", r.problem.disc.centre}, {"radius", r.problem.disc.radius}};
-    j["variable"] = "s = (y - centre) / radius, y = |x|^z, g(x) = G(y) = sum_k c_k s^k";
-    j["N"] = r.fixed_point.g.length();
+    j["basis"] = solve::to_string(r.basis);
+    if (r.basis == solve::Basis::taylor) {
+        j["disc"] = {{"centre", r.problem.disc.centre}, {"radius", r.problem.disc.radius}};
+        j["variable"] = "s = (y - centre) / radius, y = |x|^z, g(x) = G(y) = sum_k c_k s^k";
+    } else {
+        j["variable"] = "y = |x|^z on [0, 1], g(x) = G(y) = sum_k c_k T_k(2 y - 1)";
+    }
+    j["N"] = r.coefficients.length();
     j["certified"] = false;
     j["renorm_version"] = renorm::version;
     j["commit"] = renorm::git_commit;
     nlohmann::json c = nlohmann::json::array();
-    for (slong k = 0; k < r.fixed_point.g.length(); ++k)
-        c.push_back(ball::approx_decimal(r.fixed_point.g.coeff(k), digits + 10));
+    for (slong k = 0; k < r.coefficients.length(); ++k)
+        c.push_back(ball::approx_decimal(r.coefficients.coeff(k), digits + 10));
     j["coefficients"] = c;
     return j.dump(1) + "\n";
 }
@@ -77,6 +83,9 @@ int run_solve(const SolveArgs& a)
     req.order = a.order;
     req.digits = a.digits;
     req.eigenvalues = a.eigenvalues;
+    req.basis = a.basis == "taylor"      ? solve::Basis::taylor
+                : a.basis == "chebyshev" ? solve::Basis::chebyshev
+                                         : solve::Basis::automatic;
     solve::validate(req, available_memory_bytes());
     if (!a.coefficients.empty())
         io::check_writable(a.coefficients);
@@ -103,6 +112,7 @@ int run_solve(const SolveArgs& a)
         for (const auto& e : r.eigenvalues)
             ev.push_back({{"value", eigen_text(e)}, {"kind", kind_text(e)}, {"digits", eigen_digits(e)}});
         j["eigenvalues"] = ev;
+        j["basis"] = solve::to_string(r.basis);
         j["N"] = r.n;
         j["N_check"] = r.n_check;
         j["precision_bits"] = r.prec;
@@ -123,7 +133,8 @@ int run_solve(const SolveArgs& a)
     }
     std::cout << "digits: alpha " << std::min(r.alpha.stable_digits, a.digits) << ", delta "
               << std::min(r.delta.stable_digits, a.digits)
-              << " (stable between truncations N = " << r.n << " and N = " << r.n_check << ")\n"
+              << " (stable between truncations N = " << r.n << " and N = " << r.n_check << ", "
+              << solve::to_string(r.basis) << " basis)\n"
               << "working precision: " << r.prec << " bits; residual |G - T(G)| = 1e"
               << static_cast<long>(std::floor(r.log10_residual)) << "\n"
               << "status: ESTIMATE, not certified (renorm certify proves enclosures)\n";
@@ -141,6 +152,11 @@ void register_solve(CLI::App& app, int* code)
         ->capture_default_str();
     sub->add_option("-d,--digits", args->digits, "significant digits wanted")->capture_default_str();
     sub->add_option("-k,--eigenvalues", args->eigenvalues, "how many eigenvalues after delta to report (0-50)")
+        ->capture_default_str();
+    sub->add_option("--basis", args->basis,
+                    "taylor (disc about y = 1/2; fast at thousands of digits), chebyshev (collocation on "
+                    "[0, 1]; any z), or auto (taylor for z <= 6)")
+        ->check(CLI::IsMember({"auto", "taylor", "chebyshev"}))
         ->capture_default_str();
     sub->add_flag("--json", args->json, "print one JSON object on stdout");
     sub->add_flag("-q,--quiet", args->quiet, "no progress line on stderr");

@@ -91,3 +91,19 @@ TEST(FixedPoint, FailureIsReportedNotHidden)
     EXPECT_FALSE(f2.converged);
     EXPECT_FALSE(f2.message.empty());
 }
+
+TEST(FixedPoint, ChordAndNewtonVariantsAgree)
+{
+    Problem p;
+    newton::FixedPoint start = newton::approx_continuation(p, 40, 192);
+    newton::RefineOptions o;
+    o.method = newton::RefineMethod::chord;
+    newton::FixedPoint a = newton::approx_refine(start, 80, o);
+    o.method = newton::RefineMethod::newton;
+    newton::FixedPoint b = newton::approx_refine(start, 80, o);
+    ASSERT_TRUE(a.converged) << a.message;
+    ASSERT_TRUE(b.converged) << b.message;
+    EXPECT_LT(b.steps, a.steps); // Newton doubles the digits, the chord adds ~14 a step
+    EXPECT_TRUE(agrees(a.a, test_ref::alpha_z2, 80));
+    EXPECT_TRUE(agrees(b.a, test_ref::alpha_z2, 80));
+}

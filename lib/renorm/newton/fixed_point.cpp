@@ -168,7 +168,164 @@ slong approx_length_for_digits(double digits, double rate)
     return static_cast<slong>(std::ceil(digits / rate)) + 8;
 }
 
-FixedPoint approx_refine(const FixedPoint& start, slong digits, const RefineOptions& options)
+namespace {
+
+/// The chord preconditioner: a double LU of I - DT on the first m modes, the identity beyond.
+class ChordPreconditioner {
+public:
+    ChordPreconditioner(const FixedPoint& start, slong m) : m_m(m)
+    {
+        BallPoly g0 = resized(start.g, std::max(start.n, m));
+        Linearization lin(g0, start.problem, m, 128);
+        Eigen::MatrixXd j = Eigen::MatrixXd::Identity(m, m) - lin.approx_matrix(m, 128);
+        m_lu.compute(j);
+    }
+    /// P r for a residual r of length n (returned with length n). No guarantee.
+    BallPoly apply(const BallPoly& r, slong n, slong prec) const
+    {
+        BallVec out(n);
+        const slong len = std::min(r.length(), n);
+        for (slong k = 0; k < len; ++k)
+            arb_set(out[k], r.get()->coeffs + k);
+        const slong mm = std::min(m_m, n);
+        const slong ex = detail::max_exponent(out.data(), mm);
+        if (len > 0 && ex > LONG_MIN / 4) {
+            Eigen::VectorXd x = Eigen::VectorXd::Zero(m_m);
+            x.head(mm) = detail::to_scaled_doubles(out.data(), mm, ex);
+            Eigen::VectorXd y = m_lu.solve(x);
+            detail::from_scaled_doubles(out.data(), y.head(mm), ex);
+        }
+        BallPoly p;
+        arb_poly_fit_length(p.get(), n);
+        for (slong k = 0; k < n; ++k)
+            arb_set_round(p.get()->coeffs + k, out[k], prec);
+        _arb_poly_set_length(p.get(), n);
+        _arb_poly_normalise(p.get());
+        return approx_midpoints(p);
+    }
+
+private:
+    slong m_m;
+    Eigen::PartialPivLU<Eigen::MatrixXd> m_lu;
+};
+
+double log10_norm(const BallPoly& p, slong prec)
+{
+    return detail::log10_upper(norm_l1(p, prec));
+}
+
+/// log10 of the largest |g_k| over the last `count` coefficients of g (length n).
+double log10_tail(const BallPoly& g, slong n, slong count)
+{
+    double worst = -std::numeric_limits<double>::infinity();
+    for (slong k = std::max<slong>(0, n - count); k < n; ++k)
+        worst = std::max(worst, detail::log10_upper(g.coeff(k)));
+    return worst;
+}
+
+} // namespace
+
+FixedPoint approx_refine_newton(const FixedPoint& start, slong digits, const RefineOptions& options)
+{
+    if (digits < 1)
+        throw std::invalid_argument("approx_refine: digits must be >= 1");
+    FixedPoint fp = start;
+    fp.converged = false;
+    const Problem& problem = start.problem;
+    const double rate = start.decay_rate > 0.05 ? start.decay_rate : 0.05;
+    const double d_work = static_cast<double>(digits) + options.guard_digits;
+    slong n_final = std::max(approx_length_for_digits(d_work, rate), options.min_length);
+    const slong m = std::min(options.jacobian_size, n_final);
+    const ChordPreconditioner precond(start, m);
+
+    // Inexact Newton with precision doubling (DEVELOPERS.md, "Newton steps at two precisions"):
+    // the residual F = G - T_n(G) is computed at the precision of the step's target t, and the
+    // correction solves (I - DT(G)) delta = F by preconditioned iteration at the much lower
+    // precision the correction needs (t - e digits relative, e the digits G already has).
+    BallPoly g = start.g;
+    double e = std::isfinite(start.log10_residual) ? -start.log10_residual : 1.0;
+    double prev = std::numeric_limits<double>::infinity();
+    slong stalls = 0;
+    slong n = start.n;
+    slong inner_total = 0;
+    for (slong step = 0; step < options.max_steps; ++step) {
+        const double t = std::clamp(std::min(d_work, 2.0 * e - 2.0), std::min(d_work, e + 3.0), d_work);
+        n = std::max({n, approx_length_for_digits(t, rate), std::min(m, n_final)});
+        if (t >= d_work)
+            n = std::max(n, n_final);
+        const slong prec = ball::digits_to_bits(static_cast<slong>(std::ceil(t)) + 5) + 64;
+        g = resized(g, n);
+        Residual r = residual(g, problem, n, prec);
+        if (!std::isfinite(r.log10_norm)) {
+            fp.message = "Newton diverged: the residual is not finite at step " + std::to_string(step) +
+                         " (n = " + std::to_string(n) + ")";
+            return fp;
+        }
+        fp.log10_residual = r.log10_norm;
+        fp.n = n;
+        fp.prec = prec;
+        fp.steps = start.steps + step;
+        if (options.progress)
+            options.progress({"newton", step, n, prec, r.log10_norm, problem.order});
+        // The truncation must also be long enough: the last coefficients of G must lie below
+        // the target (the decay rate measured at the start can be optimistic).
+        const bool tail_ok = log10_tail(g, n, 4) <= -(d_work + 1.0);
+        if (r.log10_norm <= -d_work && n >= n_final && tail_ok) {
+            fp.converged = true;
+            break;
+        }
+        if (r.log10_norm <= -d_work && !tail_ok) {
+            n_final = static_cast<slong>(std::ceil(1.25 * static_cast<double>(n)));
+            n = n_final;
+            continue;
+        }
+        if (r.log10_norm > prev - 0.5) {
+            if (++stalls >= 4) {
+                fp.message = "Newton stalled at residual 1e" + std::to_string(static_cast<int>(r.log10_norm)) +
+                             " (n = " + std::to_string(n) + ", " + std::to_string(prec) + " bits)";
+                return fp;
+            }
+        } else {
+            stalls = 0;
+        }
+        prev = r.log10_norm;
+        const double e_now = -r.log10_norm;
+        // Relative accuracy the correction needs for the next iterate to be good to t digits.
+        const double k_rel = std::max(3.0, t - e_now + 3.0);
+        BallPoly delta = precond.apply(r.f, n, prec);
+        if (k_rel > 12.0) {
+            const slong p_in = ball::digits_to_bits(static_cast<slong>(std::ceil(k_rel)) + 5) + 64;
+            Linearization lin(truncated(g, n), problem, n, p_in);
+            const double lf = log10_norm(r.f, p_in);
+            for (slong it = 0; it < static_cast<slong>(k_rel / 8.0) + 4; ++it) {
+                // rho = F - (delta - DT delta)
+                BallPoly dtd = lin.apply(delta, p_in);
+                BallPoly rho;
+                arb_poly_sub(rho.get(), r.f.get(), delta.get(), p_in);
+                arb_poly_add(rho.get(), rho.get(), dtd.get(), p_in);
+                arb_poly_truncate(rho.get(), n);
+                rho = approx_midpoints(rho);
+                ++inner_total;
+                if (log10_norm(rho, p_in) - lf <= -k_rel)
+                    break;
+                BallPoly c = precond.apply(rho, n, p_in);
+                arb_poly_add(delta.get(), delta.get(), c.get(), p_in);
+                delta = approx_midpoints(delta);
+            }
+        }
+        arb_poly_sub(g.get(), g.get(), delta.get(), prec);
+        g = approx_midpoints(resized(g, n));
+        e = std::max(e + 3.0, std::min(t, 2.0 * e_now - 2.0));
+    }
+    if (!fp.converged && fp.message.empty())
+        fp.message = "Newton did not converge in " + std::to_string(options.max_steps) + " steps";
+    fp.g = g;
+    fp.a = approx_alpha(g, problem, fp.prec);
+    (void)inner_total;
+    return fp;
+}
+
+FixedPoint approx_refine_chord(const FixedPoint& start, slong digits, const RefineOptions& options)
 {
     if (digits < 1)
         throw std::invalid_argument("approx_refine: digits must be >= 1");
@@ -196,15 +353,17 @@ FixedPoint approx_refine(const FixedPoint& start, slong digits, const RefineOpti
     slong stalls = 0;
     slong n = start.n;
     for (slong step = 0; step < options.max_steps; ++step) {
-        const double t = std::min(d_work, e + gain);
+        const double t = std::clamp(e + gain, 1.0, d_work);
         n = std::max({n, approx_length_for_digits(t, rate), std::min(m, n_final)});
         if (t >= d_work)
             n = std::max(n, n_final);
         const slong prec = ball::digits_to_bits(static_cast<slong>(std::ceil(t)) + 5) + 64;
         g = resized(g, n);
         Residual r = residual(g, problem, n, prec);
-        if (std::isnan(r.log10_norm)) {
-            fp.message = "the doubling operator became undefined during the chord steps";
+        if (!std::isfinite(r.log10_norm)) {
+            fp.message = std::isnan(r.log10_norm)
+                             ? "the doubling operator became undefined during the chord steps"
+                             : "the chord steps diverged (infinite residual)";
             return fp;
         }
         fp.log10_residual = r.log10_norm;
@@ -264,6 +423,12 @@ FixedPoint approx_refine(const FixedPoint& start, slong digits, const RefineOpti
     fp.g = g;
     fp.a = approx_alpha(g, problem, fp.prec);
     return fp;
+}
+
+FixedPoint approx_refine(const FixedPoint& start, slong digits, const RefineOptions& options)
+{
+    return options.method == RefineMethod::chord ? approx_refine_chord(start, digits, options)
+                                                 : approx_refine_newton(start, digits, options);
 }
 
 } // namespace renorm::newton

@@ -57,8 +57,15 @@ FixedPoint approx_newton(const Problem& problem, const BallPoly& guess, slong n,
 FixedPoint approx_continuation(const Problem& problem, slong n, slong prec,
                                const ProgressFn& progress = {});
 
+/// The two refinement variants (both tested; the bare approx_refine dispatches).
+enum class RefineMethod {
+    chord,  ///< one double LU, full-precision residual every step (13-16 digits a step)
+    newton, ///< inexact Newton: residual at the target, inner solve at the correction's precision
+};
+
 /// Options of approx_refine().
 struct RefineOptions {
+    RefineMethod method = RefineMethod::chord;
     slong jacobian_size = 320; ///< size of the dense double Jacobian (identity beyond)
     slong max_steps = 600;
     double guard_digits = 10;  ///< digits solved beyond the target
@@ -71,6 +78,8 @@ struct RefineOptions {
 /// digits it can reach (about 13 digits a step). No guarantee.
 /// Returns: converged == false with the reason when the residual stalls.
 FixedPoint approx_refine(const FixedPoint& start, slong digits, const RefineOptions& options);
+FixedPoint approx_refine_chord(const FixedPoint& start, slong digits, const RefineOptions& options);
+FixedPoint approx_refine_newton(const FixedPoint& start, slong digits, const RefineOptions& options);
 
 /// The number of coefficients whose tail falls below 10^-digits at `rate` digits a term.
 slong approx_length_for_digits(double digits, double rate);

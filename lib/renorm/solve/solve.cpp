@@ -1,5 +1,7 @@
 #include <renorm/newton/detail/scaled.hpp>
 #include <renorm/solve/solve.hpp>
+#include <renorm/newton/collocation.hpp>
+#include <renorm/spectrum/collocation.hpp>
 
 #include <algorithm>
 #include <chrono>
@@ -52,18 +54,28 @@ Cost estimate_cost(const Request& request)
     Cost c;
     auto z = ball::from_string(request.order, 64);
     const double zd = z ? z->approx_double() : 2.0;
-    const double rate = guess_rate(zd);
-    c.n = newton::approx_length_for_digits(static_cast<double>(request.digits) * 1.2 + 10, rate);
     c.prec = ball::digits_to_bits(request.digits + 15) + 64;
-    // About 40 series of length n at prec bits live at once (T, DT and their factors), and a
-    // dense double Jacobian of size min(n, 320).
     const double limb_bytes = static_cast<double>(c.prec) / 8.0 + 48.0;
-    const double m = std::min<double>(static_cast<double>(c.n), 320.0);
-    c.bytes = 40.0 * static_cast<double>(c.n) * limb_bytes + 3.0 * m * m * 8.0 + 64e6;
-    // Fitted to measurements at z = 2 (bench/solve_scaling): ~45 s at 1000 digits, growing
-    // like digits^3.2; scaled by the truncation for other z.
     const double d = static_cast<double>(request.digits) / 1000.0;
-    c.seconds = 90.0 * std::pow(d, 3.2) * std::pow(1.24 / rate, 2.2);
+    if (choose_basis(request) == Basis::taylor) {
+        const double rate = guess_rate(zd);
+        c.n = newton::approx_length_for_digits(static_cast<double>(request.digits) * 1.2 + 10, rate);
+        // About 40 series of length n at prec bits live at once (T, DT and their factors), and a
+        // dense double Jacobian of size min(n, 320).
+        const double m = std::min<double>(static_cast<double>(c.n), 320.0);
+        c.bytes = 40.0 * static_cast<double>(c.n) * limb_bytes + 3.0 * m * m * 8.0 + 64e6;
+        // Fitted to bench/solve_scaling.sh at z = 2: ~90 s at 1000 digits, growing like D^3.2.
+        c.seconds = 90.0 * std::pow(d, 3.2) * std::pow(1.24 / rate, 2.2);
+    } else {
+        // Chebyshev coefficients decay about 2.2 / sqrt(z) digits a term (measured at z = 2, 16,
+        // 24, 32); four dense n x n ball matrices live at once.
+        const double rate = 2.2 / std::sqrt(zd);
+        c.n = newton::approx_length_for_digits(static_cast<double>(request.digits) * 1.2 + 10, rate);
+        const double n = static_cast<double>(c.n);
+        c.bytes = 4.0 * n * n * limb_bytes + 64e6;
+        // About 12 LU factorisations of n^3/3 products at ~(prec/64)^1.6 * 10 ns each.
+        c.seconds = 12.0 * n * n * n / 3.0 * 1e-8 * std::pow(static_cast<double>(c.prec) / 64.0, 1.6);
+    }
     return c;
 }
 
@@ -97,76 +109,38 @@ void validate(const Request& request, double memory_limit_bytes)
     }
 }
 
-Result solve_constants(const Request& request)
+std::string to_string(Basis b)
 {
-    const auto t0 = std::chrono::steady_clock::now();
-    Result res;
-    res.problem.order = request.order;
-    const double guard = 10;
-    // 1. A start at low precision (continuation in z from 2 when z != 2).
-    newton::FixedPoint start = newton::approx_continuation(res.problem, 40, 192, request.progress);
-    if (!start.converged) {
-        res.message = start.message;
-        return res;
+    switch (b) {
+    case Basis::automatic:
+        return "automatic";
+    case Basis::taylor:
+        return "taylor";
+    case Basis::chebyshev:
+        return "chebyshev";
     }
-    // 2. The fixed point at truncation N, then at about 1.2 N from there.
-    newton::RefineOptions ro;
-    ro.progress = request.progress;
-    ro.guard_digits = guard;
-    newton::FixedPoint coarse = newton::approx_refine(start, request.digits, ro);
-    if (!coarse.converged) {
-        res.message = coarse.message;
-        return res;
-    }
-    ro.min_length = static_cast<slong>(std::ceil(1.2 * static_cast<double>(coarse.n)));
-    newton::FixedPoint fine = newton::approx_refine(coarse, request.digits, ro);
-    if (!fine.converged) {
-        res.message = fine.message;
-        return res;
-    }
-    fine.decay_rate = start.decay_rate;
-    coarse.decay_rate = start.decay_rate;
-    res.fixed_point = fine;
-    res.n = coarse.n;
-    res.n_check = fine.n;
-    res.prec = fine.prec;
-    res.log10_residual = fine.log10_residual;
-    res.alpha = make_estimate(fine.a, coarse.a, request.digits);
+    return "";
+}
 
-    // 3. The spectrum: a dense double matrix for the seeds, then chord refinement.
-    const slong m = std::min<slong>(fine.g.length(), 80);
-    std::vector<spectrum::ApproxEigen> seeds = spectrum::approx_eigenvalues_dense(fine.g, res.problem, m, 128);
-    if (seeds.empty() || seeds[0].kind != spectrum::Kind::relevant) {
-        res.message = "no eigenvalue outside the unit disc was found";
-        return res;
-    }
-    spectrum::EigenOptions eo;
-    eo.progress = request.progress;
-    const double dd = static_cast<double>(request.digits) + guard;
-    spectrum::Eigenpair d_fine = spectrum::approx_refine_eigenpair(fine, seeds[0], dd, [&] {
-        spectrum::EigenOptions o = eo;
-        o.min_length = fine.n;
-        return o;
-    }());
-    spectrum::Eigenpair d_coarse = spectrum::approx_refine_eigenpair(coarse, seeds[0], dd, eo);
-    if (!d_fine.converged || !d_coarse.converged) {
-        res.message = "delta: " + (d_fine.converged ? d_coarse.message : d_fine.message);
-        return res;
-    }
-    res.delta = make_estimate(d_fine.lambda, d_coarse.lambda, request.digits);
+namespace {
 
-    // 4. The next eigenvalues, refined (real ones) to at most 30 digits.
-    const slong next_digits = std::min<slong>(request.digits, 30);
-    for (size_t i = 1; i < seeds.size() && static_cast<slong>(i) <= request.eigenvalues; ++i) {
+constexpr double guard_digits = 10;
+
+/// Fills res.eigenvalues from the seeds after delta, refining the real ones with `refine`
+/// (called as refine(seed, digits, fine?)).
+template <class Refine>
+void report_next_eigenvalues(Result& res, const std::vector<spectrum::ApproxEigen>& seeds, slong count,
+                             slong digits, Refine&& refine)
+{
+    const slong next_digits = std::min<slong>(digits, 30);
+    for (size_t i = 1; i < seeds.size() && static_cast<slong>(i) <= count; ++i) {
         EigenvalueReport rep;
         rep.approx = seeds[i].value;
         rep.kind = seeds[i].kind;
         rep.power = seeds[i].power;
         if (std::fabs(rep.approx.imag()) <= 1e-12 * std::abs(rep.approx)) {
-            spectrum::EigenOptions o = eo;
-            o.min_length = fine.n;
-            spectrum::Eigenpair f = spectrum::approx_refine_eigenpair(fine, seeds[i], next_digits + guard, o);
-            spectrum::Eigenpair c = spectrum::approx_refine_eigenpair(coarse, seeds[i], next_digits + guard, eo);
+            spectrum::Eigenpair f = refine(seeds[i], next_digits + guard_digits, true);
+            spectrum::Eigenpair c = refine(seeds[i], next_digits + guard_digits, false);
             if (f.converged && c.converged) {
                 rep.refined = make_estimate(f.lambda, c.lambda, next_digits);
                 rep.is_refined = true;
@@ -174,7 +148,131 @@ Result solve_constants(const Request& request)
         }
         res.eigenvalues.push_back(std::move(rep));
     }
+}
+
+void solve_taylor(const Request& request, Result& res)
+{
+    newton::FixedPoint start = newton::approx_continuation(res.problem, 40, 192, request.progress);
+    if (!start.converged) {
+        res.message = start.message;
+        return;
+    }
+    newton::RefineOptions ro;
+    ro.progress = request.progress;
+    ro.guard_digits = guard_digits;
+    newton::FixedPoint coarse = newton::approx_refine(start, request.digits, ro);
+    if (!coarse.converged) {
+        res.message = coarse.message;
+        return;
+    }
+    ro.min_length = static_cast<slong>(std::ceil(1.2 * static_cast<double>(coarse.n)));
+    newton::FixedPoint fine = newton::approx_refine(coarse, request.digits, ro);
+    if (!fine.converged) {
+        res.message = fine.message;
+        return;
+    }
+    fine.decay_rate = start.decay_rate;
+    coarse.decay_rate = start.decay_rate;
+    res.fixed_point = fine;
+    res.coefficients = fine.g;
+    res.n = coarse.n;
+    res.n_check = fine.n;
+    res.prec = fine.prec;
+    res.log10_residual = fine.log10_residual;
+    res.alpha = make_estimate(fine.a, coarse.a, request.digits);
+
+    const slong m = std::min<slong>(fine.g.length(), 80);
+    std::vector<spectrum::ApproxEigen> seeds = spectrum::approx_eigenvalues_dense(fine.g, res.problem, m, 128);
+    if (seeds.empty() || seeds[0].kind != spectrum::Kind::relevant) {
+        res.message = "no eigenvalue outside the unit disc was found";
+        return;
+    }
+    auto refine = [&](const spectrum::ApproxEigen& seed, double digits, bool at_fine) {
+        spectrum::EigenOptions o;
+        o.progress = request.progress;
+        if (at_fine)
+            o.min_length = fine.n;
+        return spectrum::approx_refine_eigenpair(at_fine ? fine : coarse, seed, digits, o);
+    };
+    const double dd = static_cast<double>(request.digits) + guard_digits;
+    spectrum::Eigenpair d_fine = refine(seeds[0], dd, true);
+    spectrum::Eigenpair d_coarse = refine(seeds[0], dd, false);
+    if (!d_fine.converged || !d_coarse.converged) {
+        res.message = "delta: " + (d_fine.converged ? d_coarse.message : d_fine.message);
+        return;
+    }
+    res.delta = make_estimate(d_fine.lambda, d_coarse.lambda, request.digits);
+    report_next_eigenvalues(res, seeds, request.eigenvalues, request.digits, refine);
     res.converged = true;
+}
+
+void solve_chebyshev(const Request& request, Result& res)
+{
+    newton::CollocationFixedPoint start =
+        newton::approx_collocation_continuation(request.order, 40, 192, request.progress);
+    if (!start.converged) {
+        res.message = start.message;
+        return;
+    }
+    newton::CollocationFixedPoint coarse =
+        newton::approx_collocation_refine(start, request.digits, guard_digits, 0, request.progress);
+    if (!coarse.converged) {
+        res.message = coarse.message;
+        return;
+    }
+    const slong n2 = static_cast<slong>(std::ceil(1.2 * static_cast<double>(coarse.n)));
+    newton::CollocationFixedPoint fine =
+        newton::approx_collocation_refine(coarse, request.digits, guard_digits, n2, request.progress);
+    if (!fine.converged) {
+        res.message = fine.message;
+        return;
+    }
+    res.coefficients = fine.c;
+    res.n = coarse.n;
+    res.n_check = fine.n;
+    res.prec = fine.prec;
+    res.log10_residual = fine.log10_residual;
+    res.alpha = make_estimate(fine.a, coarse.a, request.digits);
+    std::vector<spectrum::ApproxEigen> seeds = spectrum::approx_collocation_eigenvalues(fine, 80);
+    if (seeds.empty() || seeds[0].kind != spectrum::Kind::relevant) {
+        res.message = "no eigenvalue outside the unit disc was found";
+        return;
+    }
+    auto refine = [&](const spectrum::ApproxEigen& seed, double digits, bool at_fine) {
+        return spectrum::approx_collocation_eigenpair(at_fine ? fine : coarse, seed, digits);
+    };
+    const double dd = static_cast<double>(request.digits) + guard_digits;
+    spectrum::Eigenpair d_fine = refine(seeds[0], dd, true);
+    spectrum::Eigenpair d_coarse = refine(seeds[0], dd, false);
+    if (!d_fine.converged || !d_coarse.converged) {
+        res.message = "delta: " + (d_fine.converged ? d_coarse.message : d_fine.message);
+        return;
+    }
+    res.delta = make_estimate(d_fine.lambda, d_coarse.lambda, request.digits);
+    report_next_eigenvalues(res, seeds, request.eigenvalues, request.digits, refine);
+    res.converged = true;
+}
+
+} // namespace
+
+Basis choose_basis(const Request& request)
+{
+    if (request.basis != Basis::automatic)
+        return request.basis;
+    auto z = ball::from_string(request.order, 64);
+    return (z && z->approx_double() <= 6.0) ? Basis::taylor : Basis::chebyshev;
+}
+
+Result solve_constants(const Request& request)
+{
+    const auto t0 = std::chrono::steady_clock::now();
+    Result res;
+    res.problem.order = request.order;
+    res.basis = choose_basis(request);
+    if (res.basis == Basis::taylor)
+        solve_taylor(request, res);
+    else
+        solve_chebyshev(request, res);
     res.seconds = std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count();
     return res;
 }

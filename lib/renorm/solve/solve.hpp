@@ -14,9 +14,19 @@
 namespace renorm::solve {
 
 using ball::Ball;
+using ball::BallPoly;
+
+/// The basis the fixed point is solved in (DEVELOPERS.md, "Two bases").
+enum class Basis {
+    automatic, ///< Taylor on a disc for z <= 6, Chebyshev collocation above
+    taylor,    ///< Taylor series in s = (y - c)/r with chord steps: scales to thousands of digits
+    chebyshev, ///< Chebyshev collocation on [0, 1] with a dense multiprecision LU: any z
+};
+std::string to_string(Basis b);
 
 /// What to compute.
 struct Request {
+    Basis basis = Basis::automatic;
     std::string order = "2"; ///< z > 1, decimal text
     slong digits = 100;      ///< digits wanted
     slong eigenvalues = 4;   ///< how many eigenvalues after delta to report
@@ -46,7 +56,9 @@ struct EigenvalueReport {
 /// The result of solve_constants().
 struct Result {
     doubling::Problem problem;
-    newton::FixedPoint fixed_point; ///< at the larger truncation
+    Basis basis = Basis::taylor;    ///< the basis actually used
+    newton::FixedPoint fixed_point; ///< Taylor basis: the fixed point at the larger truncation
+    BallPoly coefficients;          ///< coefficients of G in the basis used (larger truncation)
     Estimate alpha, delta;
     std::vector<EigenvalueReport> eigenvalues; ///< after delta, by decreasing modulus
     slong n = 0, n_check = 0;       ///< the two truncations compared
@@ -70,6 +82,11 @@ Cost estimate_cost(const Request& request);
 /// z not a finite number > 1, digits < 1, eigenvalues < 0 or > 50, or a run whose memory estimate
 /// exceeds `memory_limit_bytes`.
 void validate(const Request& request, double memory_limit_bytes);
+
+/// The basis a request will use: its own choice, or for Basis::automatic Taylor when z <= 6
+/// (where the default disc contains the inner maps' images and the coefficients decay fast) and
+/// Chebyshev collocation above.
+Basis choose_basis(const Request& request);
 
 /// Runs the whole estimate. No guarantee. Returns converged == false with a message when Newton or
 /// the eigenvalue refinement fails; no number is reported as stable then.
