@@ -8,6 +8,18 @@
 
 using namespace renorm;
 
+namespace {
+solve::Result run(std::string z, solve::Basis b, slong digits)
+{
+    solve::Request q{};
+    q.order = std::move(z); // (moving avoids a GCC 12 -Wmaybe-uninitialized false positive)
+    q.digits = digits;
+    q.eigenvalues = 0;
+    q.basis = b;
+    return solve::solve_constants(q);
+}
+} // namespace
+
 TEST(Collocation, AlphaAndDeltaForZ2MatchThePublishedDigits)
 {
     newton::CollocationFixedPoint start = newton::approx_collocation_continuation("2", 40, 192);
@@ -28,15 +40,9 @@ TEST(Collocation, AgreesWithTheTaylorBasisWhereBothWork)
 {
     // The two bases share no code beyond Arb: agreement at z = 4 and z = 8 (an overlap test
     // across variants, STYLE.md §6).
-    for (const std::string z : {std::string("4"), std::string("8")}) {
-        solve::Request q;
-        q.order = z;
-        q.digits = 30;
-        q.eigenvalues = 0;
-        q.basis = solve::Basis::taylor;
-        solve::Result t = solve::solve_constants(q);
-        q.basis = solve::Basis::chebyshev;
-        solve::Result c = solve::solve_constants(q);
+    for (const char* z : {"4", "8"}) {
+        solve::Result t = run(z, solve::Basis::taylor, 30);
+        solve::Result c = run(z, solve::Basis::chebyshev, 30);
         ASSERT_TRUE(t.converged && c.converged) << t.message << c.message;
         EXPECT_EQ(t.basis, solve::Basis::taylor);
         EXPECT_EQ(c.basis, solve::Basis::chebyshev);
@@ -47,11 +53,7 @@ TEST(Collocation, AgreesWithTheTaylorBasisWhereBothWork)
 
 TEST(Collocation, LargeOrderIsStableBetweenTruncations)
 {
-    solve::Request q;
-    q.order = "24";
-    q.digits = 25;
-    q.eigenvalues = 0;
-    solve::Result r = solve::solve_constants(q);
+    solve::Result r = run("24", solve::Basis::automatic, 25);
     ASSERT_TRUE(r.converged) << r.message;
     EXPECT_EQ(r.basis, solve::Basis::chebyshev);
     EXPECT_GE(r.alpha.stable_digits, 25);
