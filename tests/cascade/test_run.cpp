@@ -261,6 +261,24 @@ TEST(Cascade, OrbitLeavingTheIntervalIsAFailure)
     EXPECT_TRUE(r.levels.empty());
 }
 
+TEST(Cascade, OneThreadGivesTheSameLevels)
+{
+    // The proof of level n runs beside level n+1 with two threads; with one thread the same
+    // computations run in sequence, so the enclosures must be identical.
+    CascadeOptions o;
+    o.levels = 10;
+    o.threads = 1;
+    CascadeResult one = run_cascade(make_builtin_family("logistic"), o);
+    const CascadeResult& two = run("logistic", 16);
+    ASSERT_FALSE(one.failed) << one.failure;
+    ASSERT_EQ(one.levels.size(), 11u);
+    ASSERT_GE(two.levels.size(), one.levels.size());
+    for (std::size_t i = 0; i < one.levels.size(); ++i) {
+        EXPECT_TRUE(arb_equal(one.levels[i].mu.get(), two.levels[i].mu.get())) << i;
+        EXPECT_EQ(one.levels[i].status, two.levels[i].status) << i;
+    }
+}
+
 TEST(Cascade, BadOptionsThrow)
 {
     CascadeOptions o;
