@@ -28,5 +28,6 @@ void register_cascade(CLI::App& app, int* code);
 void register_certify(CLI::App& app, int* code);
 void register_verify(CLI::App& app, int* code);
 void register_table(CLI::App& app, int* code);
+void register_plot(CLI::App& app, int* code);
 
 } // namespace renorm::app

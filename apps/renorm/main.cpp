@@ -23,6 +23,7 @@ int main(int argc, char** argv)
     register_certify(app, &code);
     register_verify(app, &code);
     register_table(app, &code);
+    register_plot(app, &code);
     try {
         app.parse(argc, argv);
     } catch (const CLI::CallForHelp& e) {

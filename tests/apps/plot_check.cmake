@@ -1,0 +1,23 @@
+# Runs `renorm plot` (RENORM, ARGS separated by '|') writing OUT, and checks that OUT exists and
+# contains every regular expression in EXPECT (separated by '|'... use ';;' between them).
+string(REPLACE "|" ";" args "${ARGS}")
+file(REMOVE "${OUT}")
+execute_process(COMMAND "${RENORM}" plot ${args} --out "${OUT}" --quiet RESULT_VARIABLE rc
+                ERROR_VARIABLE err)
+if(NOT rc EQUAL 0)
+    message(FATAL_ERROR "renorm plot ${ARGS} exited with ${rc}: ${err}")
+endif()
+if(NOT EXISTS "${OUT}")
+    message(FATAL_ERROR "no file ${OUT}")
+endif()
+file(READ "${OUT}" svg)
+if(NOT svg MATCHES "^<\\?xml" OR NOT svg MATCHES "</svg>")
+    message(FATAL_ERROR "${OUT} is not a complete SVG file")
+endif()
+string(REPLACE ";;" ";" expected "${EXPECT}")
+foreach(re IN LISTS expected)
+    if(NOT svg MATCHES "${re}")
+        message(FATAL_ERROR "${OUT} lacks '${re}'")
+    endif()
+endforeach()
+message(STATUS "ok: ${OUT}")
