@@ -227,6 +227,23 @@ TEST(Proof, HigherOrders4And6CertifyTo50Digits)
     }
 }
 
+TEST(Proof, NonIntegerOrderUsesTheBinomialSeries)
+{
+    // z = 3.5: G(u)^z and G(u)^(z-1) need the binomial series with its tail bound (B5).
+    // Reference: none outside the project to hand; the check is that the proof closes, that the
+    // enclosure is narrow, and that alpha(3.5) lies between alpha(4) and alpha(2) (published
+    // values decrease with z; leading digits from memory: 1.6903 and 2.5029).
+    const Solved& s = solved("3.5", 45);
+    certify::Certificate c = certify::certify_constants(s.problem, s.fp.g, s.fp.n,
+                                                        ball::digits_to_bits(55, 32), 128);
+    print(c);
+    ASSERT_EQ(c.status, certify::Status::certified) << c.message;
+    EXPECT_LT(c.alpha.radius_upper(), 1e-40);
+    ball::Ball lo(1.6903), hi(2.5029);
+    EXPECT_TRUE(arb_gt(c.alpha.get(), lo.get()));
+    EXPECT_TRUE(arb_lt(c.alpha.get(), hi.get()));
+}
+
 TEST(Proof, DiscChoiceKeepsAGoodDiscAndRepairsABadOne)
 {
     const Solved& s2 = solved("2", 115);

@@ -186,11 +186,13 @@ double exact_double(const ball::Ball& b, const char* what)
     return d;
 }
 
-/// recorded >= recomputed, or a rejection naming the bound.
+/// 2 recorded >= recomputed, or a rejection naming the bound. (The proof itself uses only the
+/// recomputed bounds; this catches a file whose recorded bounds understate them. The factor 2
+/// tolerates a different rounding of the approximate inverse by another Arb build.)
 void check_recorded(const json& bounds, const char* key, const Bound& recomputed)
 {
     Bound recorded = bound_field(bounds, key);
-    if (recorded < recomputed)
+    if (recorded * Bound(2.0) < recomputed)
         throw Reject{std::string("the recorded bound ") + key +
                          " is smaller than the recomputed one (" +
                          recomputed.text(7) + ")",
