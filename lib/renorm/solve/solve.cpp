@@ -139,8 +139,8 @@ void report_next_eigenvalues(Result& res, const std::vector<spectrum::ApproxEige
         rep.kind = seeds[i].kind;
         rep.power = seeds[i].power;
         if (std::fabs(rep.approx.imag()) <= 1e-12 * std::abs(rep.approx)) {
-            spectrum::Eigenpair f = refine(seeds[i], next_digits + guard_digits, true);
             spectrum::Eigenpair c = refine(seeds[i], next_digits + guard_digits, false);
+            spectrum::Eigenpair f = refine(seeds[i], next_digits + guard_digits, true);
             if (f.converged && c.converged) {
                 rep.refined = make_estimate(f.lambda, c.lambda, next_digits);
                 rep.is_refined = true;
@@ -187,16 +187,23 @@ void solve_taylor(const Request& request, Result& res)
         res.message = "no eigenvalue outside the unit disc was found";
         return;
     }
+    // The eigenpair at the longer truncation starts from the one at the shorter truncation, so
+    // that it needs only the steps that the extra coefficients call for.
+    spectrum::Eigenpair last_coarse;
     auto refine = [&](const spectrum::ApproxEigen& seed, double digits, bool at_fine) {
         spectrum::EigenOptions o;
         o.progress = request.progress;
-        if (at_fine)
-            o.min_length = fine.n;
-        return spectrum::approx_refine_eigenpair(at_fine ? fine : coarse, seed, digits, o);
+        if (!at_fine) {
+            last_coarse = spectrum::approx_refine_eigenpair(coarse, seed, digits, o);
+            return last_coarse;
+        }
+        o.min_length = fine.n;
+        o.start = &last_coarse;
+        return spectrum::approx_refine_eigenpair(fine, seed, digits, o);
     };
     const double dd = static_cast<double>(request.digits) + guard_digits;
-    spectrum::Eigenpair d_fine = refine(seeds[0], dd, true);
     spectrum::Eigenpair d_coarse = refine(seeds[0], dd, false);
+    spectrum::Eigenpair d_fine = refine(seeds[0], dd, true);
     if (!d_fine.converged || !d_coarse.converged) {
         res.message = "delta: " + (d_fine.converged ? d_coarse.message : d_fine.message);
         return;

@@ -127,10 +127,16 @@ Eigenpair approx_refine_eigenpair(const newton::FixedPoint& fp, const ApproxEige
     BallPoly h = from_doubles(h0.data(), m);
     Ball lambda(lambda0);
     double e = 0; // digits reached
+    slong n = m;
+    if (options.start && options.start->converged) {
+        h = options.start->h;
+        lambda = options.start->lambda;
+        e = -options.start->log10_residual;
+        n = std::min(n_final, std::max(n, options.start->n));
+    }
     double gain = 10;
     double prev = std::numeric_limits<double>::infinity();
     slong stalls = 0;
-    slong n = m;
     const double d_work = digits;
     std::unique_ptr<Linearization> lin;
     slong lin_prec = 0, lin_n = 0;
