@@ -1,29 +1,14 @@
 #include "commands.hpp"
 
-#include <renorm/version.hpp>
-
 #include <exception>
 #include <iostream>
 
 int main(int argc, char** argv)
 {
     using namespace renorm::app;
-    CLI::App app{"renorm: universal constants of period-doubling renormalization (Feigenbaum's "
-                 "delta and alpha, and their analogues for a critical point of any order z), "
-                 "computed to any precision, with rigorous enclosures and an independent "
-                 "cross-check in concrete map families."};
-    app.set_version_flag("--version", std::string("renorm ") + renorm::version + " (commit " +
-                                          renorm::git_commit + ")");
-    app.require_subcommand(1);
-    app.footer("Exit codes: 0 ok, 1 computation failed, 2 bad input, 3 not certified.\n"
-               "Run 'renorm COMMAND --help' for the options and an example of each command.");
+    CLI::App app;
     int code = exit_ok;
-    register_solve(app, &code);
-    register_cascade(app, &code);
-    register_certify(app, &code);
-    register_verify(app, &code);
-    register_table(app, &code);
-    register_plot(app, &code);
+    build_app(app, &code); // app.cpp: description, version flag, every subcommand
     try {
         app.parse(argc, argv);
     } catch (const CLI::CallForHelp& e) {
