@@ -16,8 +16,8 @@ namespace {
 
 // Sanity limits for a document read from disk: beyond them the re-check would not finish in
 // reasonable time or memory, so the file is rejected as bad input.
-constexpr slong max_truncation = 20000;
-constexpr slong max_prec = 400000;
+constexpr slong max_truncation = 3000;
+constexpr slong max_prec = 40000;
 
 json bound_json(const Bound& b)
 {
@@ -388,6 +388,8 @@ Verdict verify_certificate(const std::string& text)
         }
         const json& fp = field(doc, "fixed_point");
         pd.g0 = poly_field(fp, "centre", pd.n);
+        if (2 * pd.g0.length() < pd.n)
+            throw Reject{"the centre has fewer than N/2 coefficients (truncation inflated?)", true};
         pd.rho_g = bound_field(fp, "radius");
         const json& ep = field(doc, "eigenpair");
         pd.h0 = poly_field(ep, "vector", pd.n);
