@@ -89,3 +89,22 @@ TEST(Spectrum, ComplexSeedsAreNotRefined)
     EXPECT_FALSE(ep.converged);
     EXPECT_FALSE(ep.message.empty());
 }
+
+TEST(Spectrum, MatrixFreeArnoldiAgreesWithTheDenseSolver)
+{
+    // The two seed variants (Eigen dense QR, Spectra matrix-free Arnoldi) on the same truncation.
+    const auto& fp = fixed_point_z2(110);
+    auto dense = spectrum::approx_eigenvalues_dense(fp.g, fp.problem, 60, 128);
+    auto mf = spectrum::approx_eigenvalues_matfree(fp.g, fp.problem, 60, 5, 128);
+    ASSERT_EQ(mf.size(), 5u);
+    for (size_t i = 0; i < 5; ++i) {
+        EXPECT_NEAR(mf[i].value.real(), dense[i].value.real(), 1e-9) << i;
+        EXPECT_EQ(mf[i].kind, dense[i].kind) << i;
+    }
+    EXPECT_NEAR(mf[0].value.real(), 4.669201609102990, 1e-10);
+    // dispatch: above the cutoff the matrix-free variant answers with `count` values
+    const slong saved = spectrum::dense_eigen_cutoff;
+    spectrum::dense_eigen_cutoff = 10;
+    EXPECT_EQ(spectrum::approx_eigenvalues(fp.g, fp.problem, 60, 3, 128).size(), 3u);
+    spectrum::dense_eigen_cutoff = saved;
+}

@@ -1,6 +1,8 @@
 #include <renorm/newton/detail/scaled.hpp>
 #include <renorm/spectrum/spectrum.hpp>
 
+#include <Spectra/GenEigsSolver.h>
+
 #include <algorithm>
 #include <climits>
 #include <cmath>
@@ -85,6 +87,86 @@ std::vector<ApproxEigen> approx_eigenvalues_dense(const BallPoly& g, const doubl
     // The eigenvalue 0 of Q's kernel may be resolved as a tiny nonzero number: drop anything
     // at the level of rounding relative to the largest.
     return out;
+}
+
+slong dense_eigen_cutoff = 200;
+
+namespace {
+
+/// x -> DT(G) Q x in double precision, for Spectra (rows, cols, perform_op).
+class MatrixFreeDT {
+public:
+    using Scalar = double;
+    MatrixFreeDT(const Linearization& lin, slong m, slong prec) : m_lin(lin), m_m(m), m_prec(prec)
+    {
+        const double s0 = lin.s_at_zero().approx_double();
+        m_l0.resize(m);
+        for (slong k = 0; k < m; ++k)
+            m_l0[k] = std::pow(s0, static_cast<double>(k));
+    }
+    Eigen::Index rows() const { return m_m; }
+    Eigen::Index cols() const { return m_m; }
+    void perform_op(const double* x, double* y) const
+    {
+        // Q x = x - x(0) 1, x(0) = sum_k x_k s0^k
+        double h0 = 0;
+        for (slong k = 0; k < m_m; ++k)
+            h0 += x[k] * m_l0[k];
+        std::vector<double> qx(x, x + m_m);
+        qx[0] -= h0;
+        BallPoly h = from_doubles(qx.data(), m_m);
+        BallPoly out = m_lin.apply(h, m_prec);
+        for (slong k = 0; k < m_m; ++k)
+            y[k] = out.coeff(k).approx_double();
+    }
+
+private:
+    const Linearization& m_lin;
+    slong m_m;
+    slong m_prec;
+    std::vector<double> m_l0;
+};
+
+} // namespace
+
+std::vector<ApproxEigen> approx_eigenvalues_matfree(const BallPoly& g, const doubling::Problem& problem,
+                                                    slong m, slong count, slong prec)
+{
+    if (m < 4 || count < 1)
+        throw std::invalid_argument("approx_eigenvalues_matfree: need m >= 4 and count >= 1");
+    count = std::min(count, m - 2);
+    BallPoly gm = truncated(g, std::max(m, g.length()));
+    Linearization lin(gm, problem, m, prec);
+    MatrixFreeDT op(lin, m, prec);
+    const slong ncv = std::min<slong>(m, std::max<slong>(2 * count + 1, 24));
+    Spectra::GenEigsSolver<MatrixFreeDT> eigs(op, count, ncv);
+    eigs.init();
+    eigs.compute(Spectra::SortRule::LargestMagn, 1000, 1e-12);
+    std::vector<ApproxEigen> out;
+    if (eigs.info() != Spectra::CompInfo::Successful)
+        return out;
+    const Eigen::VectorXcd values = eigs.eigenvalues();
+    const Eigen::MatrixXcd vectors = eigs.eigenvectors();
+    const double alpha = lin.a().approx_double();
+    const double z = problem.order_ball(64).approx_double();
+    for (Eigen::Index i = 0; i < values.size(); ++i) {
+        ApproxEigen e;
+        e.value = values(i);
+        e.vector = vectors.col(i);
+        e.kind = approx_classify(e.value, alpha, z, 1e-6, &e.power);
+        out.push_back(std::move(e));
+    }
+    std::sort(out.begin(), out.end(),
+              [](const ApproxEigen& x, const ApproxEigen& y) { return std::abs(x.value) > std::abs(y.value); });
+    return out;
+}
+
+std::vector<ApproxEigen> approx_eigenvalues(const BallPoly& g, const doubling::Problem& problem, slong m,
+                                            slong count, slong prec)
+{
+    if (m <= dense_eigen_cutoff)
+        return approx_eigenvalues_dense(g, problem, m, prec);
+    return approx_eigenvalues_matfree(g, problem, m, count, prec);
 }
 
 Eigenpair approx_refine_eigenpair(const newton::FixedPoint& fp, const ApproxEigen& seed,

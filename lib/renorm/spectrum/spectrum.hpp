@@ -44,6 +44,21 @@ struct ApproxEigen {
 std::vector<ApproxEigen> approx_eigenvalues_dense(const BallPoly& g, const doubling::Problem& problem,
                                                   slong m, slong prec);
 
+/// The `count` eigenvalues of largest modulus of DT(G) Q on the first m modes, by Spectra's
+/// implicitly restarted Arnoldi method with DT applied matrix-free (Linearization::apply at
+/// `prec` bits, rounded to doubles). Sorted by decreasing modulus. No guarantee.
+/// Returns: an empty vector when Arnoldi does not converge.
+std::vector<ApproxEigen> approx_eigenvalues_matfree(const BallPoly& g, const doubling::Problem& problem,
+                                                    slong m, slong count, slong prec);
+
+/// Dispatches: the dense variant up to m = dense_eigen_cutoff, the matrix-free one above
+/// (returning at most `count` eigenvalues then).
+std::vector<ApproxEigen> approx_eigenvalues(const BallPoly& g, const doubling::Problem& problem, slong m,
+                                            slong count, slong prec);
+
+/// Tunable cutoff of approx_eigenvalues().
+extern slong dense_eigen_cutoff;
+
 /// Classifies `lambda` given alpha and z: a^(-zm) within relative tolerance tol, else by modulus.
 Kind approx_classify(std::complex<double> lambda, double alpha, double z, double tol, int* power);
 
