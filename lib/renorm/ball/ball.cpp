@@ -77,15 +77,28 @@ std::string dump(const Ball& x)
 
 std::optional<Ball> load(const std::string& s)
 {
-    // arb_load_str expects exactly four hexadecimal fields separated by single spaces.
-    int spaces = 0;
-    for (char ch : s) {
-        if (ch == ' ')
-            ++spaces;
-        else if (!std::isxdigit(static_cast<unsigned char>(ch)) && ch != '-')
+    // arb_load_str expects exactly four fields separated by single spaces, each an optional '-'
+    // and at least one hexadecimal digit. Anything else must be refused here: Arb does not
+    // report a malformed field, it calls flint_abort (found by tests/fuzz, certificate target).
+    int fields = 0;
+    size_t i = 0;
+    while (i <= s.size()) {
+        size_t j = i;
+        if (j < s.size() && s[j] == '-')
+            ++j;
+        const size_t digits_start = j;
+        while (j < s.size() && std::isxdigit(static_cast<unsigned char>(s[j])))
+            ++j;
+        if (j == digits_start)
             return std::nullopt;
+        ++fields;
+        if (j == s.size())
+            break;
+        if (s[j] != ' ')
+            return std::nullopt;
+        i = j + 1;
     }
-    if (spaces != 3)
+    if (fields != 4)
         return std::nullopt;
     Ball b;
     if (arb_load_str(b.get(), s.c_str()) != 0)

@@ -1,0 +1,48 @@
+// Fuzz target: the command line. The input is split at newlines into argv; the whole CLI::App of
+// `renorm` (build_app) parses it with every subcommand's callback removed, so nothing runs.
+// CLI11's parse errors and the exceptions main() turns into exit codes are expected; crashes,
+// sanitizer reports and any other exception are bugs.
+#include "commands.hpp"
+
+#include <cstddef>
+#include <cstdint>
+#include <functional>
+#include <stdexcept>
+#include <string>
+#include <vector>
+
+extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size)
+{
+    std::vector<std::string> args{"renorm"};
+    std::string cur;
+    for (std::size_t i = 0; i < size; ++i) {
+        const char c = static_cast<char>(data[i]);
+        if (c == '\n') {
+            args.push_back(cur);
+            cur.clear();
+        } else if (c != '\0') {
+            cur += c;
+        }
+    }
+    if (!cur.empty() || size == 0)
+        args.push_back(cur);
+    if (args.size() > 64)
+        return 0;
+    std::vector<char*> argv;
+    for (auto& a : args)
+        argv.push_back(a.data());
+    argv.push_back(nullptr);
+
+    CLI::App app;
+    int code = 0;
+    renorm::app::build_app(app, &code);
+    for (CLI::App* sub : app.get_subcommands({}))
+        sub->callback(std::function<void()>{});
+    try {
+        app.parse(static_cast<int>(args.size()), argv.data());
+    } catch (const CLI::Error&) {
+    } catch (const renorm::app::BadInput&) {
+    } catch (const std::invalid_argument&) {
+    }
+    return 0;
+}
