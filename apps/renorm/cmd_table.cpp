@@ -17,6 +17,8 @@
 #include <chrono>
 #include <cstdio>
 #include <cstdlib>
+#include <fstream>
+#include <sstream>
 #include <ctime>
 #include <iostream>
 #include <memory>
@@ -40,6 +42,7 @@ struct TableArgs {
     int threads = 0;
     bool quiet = false;
     std::string title;
+    std::string from;
 };
 
 /// UTC date of the run, or of SOURCE_DATE_EPOCH when that is set (the reproducible-builds
@@ -152,9 +155,38 @@ private:
     std::chrono::steady_clock::time_point m_start = std::chrono::steady_clock::now();
 };
 
+/// --from: re-renders a CSV table in another format, keeping its provenance and rows.
+int convert_table(const TableArgs& a)
+{
+    if (!a.orders.empty() || a.certify || a.eigenvalues != 0 || a.timing || !a.title.empty())
+        throw BadInput("--from converts an existing table and takes only --format, --out, --force");
+    const io::TableFormat format = io::table_format_from_string(a.format);
+    std::ifstream in(a.from, std::ios::binary);
+    if (!in)
+        throw BadInput("cannot read '" + a.from + "'");
+    std::ostringstream ss;
+    ss << in.rdbuf();
+    io::Table t = io::table_from_csv(ss.str());
+    if (!a.out.empty()) {
+        io::check_writable(a.out, a.force);
+        io::write_file_atomic(a.out, io::to_text(t, format));
+    } else {
+        std::cout << io::to_text(t, format);
+    }
+    return t.failed_rows() > 0 ? exit_failed : exit_ok;
+}
+
 int run_table(const TableArgs& a, const TableBackend& backend)
 {
     const auto t0 = std::chrono::steady_clock::now();
+    if (!a.from.empty()) {
+        if (!backend.is_root)
+            return exit_ok;
+        return convert_table(a);
+    }
+    if (a.orders.empty())
+        throw BadInput("--orders is required (a list like 2,4,6 or a range A:B:STEP with "
+                       "1 < z <= 64), or --from FILE to convert a table");
     // Checks every process makes identically (same arguments): bad input throws everywhere.
     const std::vector<std::string> orders = table::parse_orders(a.orders);
     const io::TableFormat format = io::table_format_from_string(a.format);
@@ -178,8 +210,6 @@ int run_table(const TableArgs& a, const TableBackend& backend)
             io::check_writable(a.out, a.force);
         } catch (const std::exception& e) {
             out_problem = e.what();
-            if (out_problem.find("exists") != std::string::npos && !a.force)
-                out_problem += " (use --force to replace it)";
         }
     }
     if (!backend.agree(out_problem.empty())) {
@@ -259,8 +289,7 @@ void register_table_with(CLI::App& app, int* code, TableBackend backend)
                  "with provenance");
     sub->add_option("--orders", args->orders,
                     "orders z: a comma-separated list of numbers and ranges A:B:STEP "
-                    "(1 < z <= 64), e.g. 2,4,6 or 1.5:8:0.5,10,12")
-        ->required();
+                    "(1 < z <= 64), e.g. 2,4,6 or 1.5:8:0.5,10,12");
     sub->add_option("-d,--digits", args->digits, "significant digits wanted per constant")
         ->capture_default_str();
     sub->add_option("-k,--eigenvalues", args->eigenvalues,
@@ -279,6 +308,9 @@ void register_table_with(CLI::App& app, int* code, TableBackend backend)
         ->capture_default_str();
     sub->add_option("--title", args->title, "title line of the provenance header");
     sub->add_flag("-q,--quiet", args->quiet, "no progress on stderr");
+    sub->add_option("--from", args->from,
+                    "convert the CSV table FILE (as written by this command) to --format, "
+                    "keeping its provenance; computes nothing");
     sub->footer(
         "Each row is an independent solve (as 'renorm solve') of one order z; rows run in\n"
         "parallel, longest first. Estimated rows show only digits on which two truncations agree;\n"
@@ -289,7 +321,8 @@ void register_table_with(CLI::App& app, int* code, TableBackend backend)
         "Examples:\n"
         "  renorm table --orders 2,4,6 --digits 30\n"
         "  renorm table --orders 1.5:8:0.5,10,12 -d 50 --format markdown --out table.md\n"
-        "  renorm table --orders 2:4:1 -d 20 --certify --eigenvalues 2 --format latex");
+        "  renorm table --orders 2:4:1 -d 20 --certify --eigenvalues 2 --format latex\n"
+        "  renorm table --from table.csv --format markdown --out table.md");
     sub->callback([args, code, backend] { *code = run_table(*args, backend); });
 }
 

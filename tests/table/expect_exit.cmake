@@ -1,0 +1,15 @@
+# Runs a command and checks its exit code (and optionally its stderr).
+# Usage: cmake -DCMD="prog;arg;..." -DEXPECT=2 [-DSTDERR_REGEX=...] -P expect_exit.cmake
+execute_process(COMMAND ${CMD} RESULT_VARIABLE rc OUTPUT_VARIABLE out ERROR_VARIABLE err)
+if(NOT rc EQUAL EXPECT)
+    message(FATAL_ERROR "exit code ${rc}, expected ${EXPECT}\nstdout:\n${out}\nstderr:\n${err}")
+endif()
+if(DEFINED STDERR_REGEX AND NOT err MATCHES "${STDERR_REGEX}")
+    message(FATAL_ERROR "stderr does not match '${STDERR_REGEX}':\n${err}")
+endif()
+string(REGEX MATCHALL "\n" lines "${err}")
+list(LENGTH lines nlines)
+if(DEFINED ONE_LINE AND nlines GREATER 1)
+    message(FATAL_ERROR "expected a one-line error, got:\n${err}")
+endif()
+message(STATUS "exit code ${rc} as expected")

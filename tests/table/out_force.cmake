@@ -1,0 +1,42 @@
+# `renorm table --out`: writes the file; refuses to replace it without --force (exit 2, a one-line
+# message, the file unchanged); replaces it with --force; `--from` converts it to Markdown.
+# Usage: cmake -DCLI=renorm -DDIR=scratch-dir -P out_force.cmake
+set(f ${DIR}/out_force.csv)
+file(REMOVE ${f} ${DIR}/out_force.md)
+execute_process(COMMAND ${CLI} table --orders 2 --digits 6 --out ${f} --json
+                RESULT_VARIABLE rc OUTPUT_VARIABLE out ERROR_VARIABLE err)
+if(NOT rc EQUAL 0 OR NOT out MATCHES "\"estimated\":1" OR NOT out MATCHES "\"failed\":0")
+    message(FATAL_ERROR "first write: exit ${rc}\n${out}\n${err}")
+endif()
+file(READ ${f} first)
+if(NOT first MATCHES "\n2,estimated,2\\.50291,6,4\\.66920,6,")
+    message(FATAL_ERROR "unexpected table:\n${first}")
+endif()
+execute_process(COMMAND ${CLI} table --orders 2 --digits 7 --out ${f}
+                RESULT_VARIABLE rc OUTPUT_VARIABLE out ERROR_VARIABLE err)
+file(READ ${f} second)
+if(NOT rc EQUAL 2 OR NOT err MATCHES "exists.*--force" OR NOT second STREQUAL first)
+    message(FATAL_ERROR "without --force: exit ${rc} (expected 2), stderr: ${err}")
+endif()
+string(REGEX MATCHALL "\n" nl "${err}")
+list(LENGTH nl n)
+if(n GREATER 1)
+    message(FATAL_ERROR "expected a one-line error, got:\n${err}")
+endif()
+execute_process(COMMAND ${CLI} table --orders 2 --digits 7 --out ${f} --force
+                RESULT_VARIABLE rc OUTPUT_VARIABLE out ERROR_VARIABLE err)
+file(READ ${f} third)
+if(NOT rc EQUAL 0 OR NOT third MATCHES "\n2,estimated,2\\.502908,7,")
+    message(FATAL_ERROR "with --force: exit ${rc}\n${third}\n${err}")
+endif()
+execute_process(COMMAND ${CLI} table --from ${f} --format markdown --out ${DIR}/out_force.md
+                RESULT_VARIABLE rc ERROR_VARIABLE err)
+file(READ ${DIR}/out_force.md md)
+if(NOT rc EQUAL 0 OR NOT md MATCHES "\n\\| 2 \\| 2\\.502908 \\| 7 \\| 4\\.669202 \\| 7 \\| estimated")
+    message(FATAL_ERROR "--from: exit ${rc}\n${md}\n${err}")
+endif()
+file(GLOB leftovers ${DIR}/*.tmp* ${DIR}/.*tmp*)
+if(leftovers)
+    message(FATAL_ERROR "temporary files left behind: ${leftovers}")
+endif()
+message(STATUS "out/force/from behave")
