@@ -2,7 +2,7 @@
 # The README's test command: build with warnings as errors, then run the whole test suite.
 set -euo pipefail
 cd "$(dirname "$0")/.."
-bash scripts/build.sh -DRENORM_WERROR=ON
+bash scripts/build.sh -DRENORM_WERROR=ON -DRENORM_WITH_MPI=ON
 ctest --test-dir build --output-on-failure -j"$(nproc)"
 # The README's Python line, from a fresh shell outside the tree (build.sh wrote renorm.pth).
 (cd / && env -u PYTHONPATH python3 -c "import renorm, sys; d = renorm.solve(order=2, digits=30).delta; print('python: delta =', d); sys.exit(d != '4.66920160910299067185320382047')")

@@ -7,7 +7,8 @@
 // 10-15 s at z = 12-16 on one core of the 2-core CI machine, too much for the default suite. So
 // by default every row is recomputed at min(claimed, 12) digits, and the rows with z <= 4 also at
 // min(claimed, 30) digits. With RENORM_TABLE_RECHECK_ALL=1 (the ctest test
-// table.shipped_data_all_rows, labelled slow) every row is recomputed at min(claimed, 30).
+// table.shipped_data_all_rows, labelled slow, registered with -DRENORM_TABLE_RECHECK_ALL=ON)
+// every row is recomputed at min(claimed, 30).
 #include <renorm/ball/ball.hpp>
 #include <renorm/io/table.hpp>
 #include <renorm/table/compute.hpp>
