@@ -19,6 +19,7 @@ void build_app(CLI::App& app, int* code)
                "Run 'renorm COMMAND --help' for the options and an example of each command.");
     register_solve(app, code);
     register_cascade(app, code);
+    register_crosscheck(app, code);
     register_certify(app, code);
     register_verify(app, code);
     register_table(app, code);

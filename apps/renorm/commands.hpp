@@ -25,6 +25,7 @@ struct BadInput : std::runtime_error {
 /// exit code in `*code`.
 void register_solve(CLI::App& app, int* code);
 void register_cascade(CLI::App& app, int* code);
+void register_crosscheck(CLI::App& app, int* code);
 void register_certify(CLI::App& app, int* code);
 void register_verify(CLI::App& app, int* code);
 void register_table(CLI::App& app, int* code);
