@@ -7,6 +7,8 @@
 #include <cmath>
 #include <memory>
 #include <stdexcept>
+#include <string>
+#include <vector>
 
 namespace renorm::ball {
 
@@ -77,12 +79,16 @@ std::string dump(const Ball& x)
 
 std::optional<Ball> load(const std::string& s)
 {
-    // arb_load_str expects exactly four fields separated by single spaces, each an optional '-'
-    // and at least one hexadecimal digit. Anything else must be refused here: Arb does not
-    // report a malformed field, it calls flint_abort (found by tests/fuzz, certificate target).
-    int fields = 0;
+    // arb_load_str reads four fields "m e m' e'" (arf mantissa and exponent, mag mantissa and
+    // exponent), each an optional '-' and hexadecimal digits, separated by single spaces. Arb does
+    // not report malformed text: it calls flint_abort. So refuse here everything arb_dump_str never
+    // writes and Arb would abort on (each found by tests/fuzz, certificate target): a field that is
+    // not of that form; a zero arf mantissa with an exponent other than 0, -1, -2, -3 (zero, +inf,
+    // -inf, nan); a zero mag mantissa with an exponent other than 0, -1 (zero, inf); a negative
+    // mag mantissa, or one wider than the 30 bits of a mag.
+    std::vector<std::string> fields;
     size_t i = 0;
-    while (i <= s.size()) {
+    while (true) {
         size_t j = i;
         if (j < s.size() && s[j] == '-')
             ++j;
@@ -91,15 +97,48 @@ std::optional<Ball> load(const std::string& s)
             ++j;
         if (j == digits_start)
             return std::nullopt;
-        ++fields;
+        fields.push_back(s.substr(i, j - i));
         if (j == s.size())
             break;
-        if (s[j] != ' ')
+        if (s[j] != ' ' || fields.size() == 4)
             return std::nullopt;
         i = j + 1;
     }
-    if (fields != 4)
+    if (fields.size() != 4)
         return std::nullopt;
+    auto is_zero = [](const std::string& f) {
+        return f.find_first_not_of("-0") == std::string::npos;
+    };
+    // The value of a short field (at most 4 hex digits after leading zeros), else nullopt.
+    auto small_value = [](const std::string& f) -> std::optional<long> {
+        const bool neg = f[0] == '-';
+        const size_t start = f.find_first_not_of('0', neg ? 1 : 0);
+        if (start == std::string::npos)
+            return 0L;
+        if (f.size() - start > 4)
+            return std::nullopt;
+        const long v = std::stol(f.substr(start), nullptr, 16);
+        return neg ? -v : v;
+    };
+    if (is_zero(fields[0])) {
+        const auto e = small_value(fields[1]);
+        if (!e || *e > 0 || *e < -3)
+            return std::nullopt;
+    }
+    if (fields[2][0] == '-')
+        return std::nullopt;
+    {
+        const size_t start = fields[2].find_first_not_of('0');
+        if (start != std::string::npos &&
+            (fields[2].size() - start > 8 ||
+             std::stoul(fields[2].substr(start), nullptr, 16) >= (1UL << 30)))
+            return std::nullopt;
+    }
+    if (is_zero(fields[2])) {
+        const auto e = small_value(fields[3]);
+        if (!e || *e > 0 || *e < -1)
+            return std::nullopt;
+    }
     Ball b;
     if (arb_load_str(b.get(), s.c_str()) != 0)
         return std::nullopt;
