@@ -81,32 +81,55 @@ int run_certify(const CertifyArgs& a)
             }
         }
     }
-    const slong target = a.digits + 15;
-    newton::RefineOptions opt;
-    newton::FixedPoint fp = newton::approx_refine(start, target, opt);
-    if (!fp.converged) {
-        std::cerr << "renorm certify: the approximate fixed point did not converge: " << fp.message
-                  << "\n";
-        return exit_failed;
-    }
-    const auto t1 = std::chrono::steady_clock::now();
-    const slong prec = ball::digits_to_bits(a.digits + 25, 32);
-    certify::Certificate c = certify::certify_constants(problem, fp.g, fp.n, prec, 128);
-    const auto t2 = std::chrono::steady_clock::now();
-    const double t_solve = std::chrono::duration<double>(t1 - t0).count();
-    const double t_proof = std::chrono::duration<double>(t2 - t1).count();
-
+    // Up to three attempts: when a proof does not close (or is too wide), the next attempt
+    // uses a longer truncation (the tail bound beta falls like ||sigma_v||^N) and more guard
+    // digits. The limit is fixed and reaching it is reported.
+    const int max_attempts = 3;
+    newton::FixedPoint fp;
+    certify::Certificate c;
     bool enough = false;
-    if (c.status == certify::Status::certified) {
-        // radius < 10^-digits, compared exactly (mag against a lower bound of 10^-digits)
-        ball::Ball need;
-        arb_set_ui(need.get(), 10);
-        arb_pow_ui(need.get(), need.get(), static_cast<ulong>(a.digits), 64);
-        arb_inv(need.get(), need.get(), 64);
-        series::Bound lower;
-        arb_get_mag_lower(lower.get(), need.get());
-        enough = series::Bound::radius_of(c.alpha) < lower &&
-                 series::Bound::radius_of(c.delta) < lower;
+    double t_solve = std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count();
+    double t_proof = 0;
+    int attempt = 0;
+    slong min_length = 0;
+    for (attempt = 1; attempt <= max_attempts; ++attempt) {
+        const auto ta = std::chrono::steady_clock::now();
+        const slong guard = 15 + 10 * (attempt - 1);
+        newton::RefineOptions opt;
+        opt.min_length = min_length;
+        fp = newton::approx_refine(start, a.digits + guard, opt);
+        if (!fp.converged) {
+            std::cerr << "renorm certify: the approximate fixed point did not converge: "
+                      << fp.message << "\n";
+            return exit_failed;
+        }
+        const auto tb = std::chrono::steady_clock::now();
+        const slong prec = ball::digits_to_bits(a.digits + guard + 10, 32);
+        c = certify::certify_constants(problem, fp.g, fp.n, prec, 128);
+        const auto tc = std::chrono::steady_clock::now();
+        t_solve += std::chrono::duration<double>(tb - ta).count();
+        t_proof += std::chrono::duration<double>(tc - tb).count();
+        if (c.status == certify::Status::bad_input)
+            break;
+        if (c.status == certify::Status::certified) {
+            // radius < 10^-digits, compared exactly (mag against a lower bound of 10^-digits)
+            ball::Ball need;
+            arb_set_ui(need.get(), 10);
+            arb_pow_ui(need.get(), need.get(), static_cast<ulong>(a.digits), 64);
+            arb_inv(need.get(), need.get(), 64);
+            series::Bound lower;
+            arb_get_mag_lower(lower.get(), need.get());
+            enough = series::Bound::radius_of(c.alpha) < lower &&
+                     series::Bound::radius_of(c.delta) < lower;
+            if (enough)
+                break;
+        }
+        if (attempt < max_attempts && !a.json)
+            std::cerr << "renorm certify: attempt " << attempt << " with N = " << fp.n << ": "
+                      << (c.status == certify::Status::certified ? "enclosure too wide"
+                                                                 : c.message)
+                      << "; retrying with a longer truncation\n";
+        min_length = fp.n + fp.n / 4 + 8;
     }
     std::string written;
     if (enough && !a.out.empty()) {

@@ -391,7 +391,12 @@ Certificate run_certify(const doubling::Problem& problem, const BallPoly& g0, sl
     FixedPointBounds first = fixed_point_bounds(pd, hp, Bound(), mut, &why);
     if (!first.y.is_finite() || !first.z.is_finite() || !(first.z < Bound(1.0))) {
         c.fixed_point = first;
-        c.message = why.empty() ? "fixed point: Z < 1 fails (Z = " + mag_text(first.z) + ")" : why;
+        c.message = (first.z.is_finite() && first.y.is_finite())
+                        ? "fixed point: Z < 1 fails (Z = " + mag_text(first.z) +
+                              ", of which the tail columns k >= N give ||A|| beta = " +
+                              mag_text(series::max(first.norm_a, Bound(1.0)) * first.beta) +
+                              "; a longer truncation or a disc that v maps deeper inside helps)"
+                        : why;
         return c;
     }
     pd.rho_g = choose_radius(first.y, first.z, 1.5);
@@ -413,7 +418,9 @@ Certificate run_certify(const doubling::Problem& problem, const BallPoly& g0, sl
     EigenBounds e0 = eigen_bounds(pd, Bound(), mut, &why);
     if (!e0.y.is_finite() || !e0.z0.is_finite() || !(e0.z0 < Bound(1.0))) {
         c.eigen = e0;
-        c.message = why.empty() ? "eigenpair: Z < 1 fails (Z = " + mag_text(e0.z0) + ")" : why;
+        c.message = (e0.z0.is_finite() && e0.y.is_finite())
+                        ? "eigenpair: Z < 1 fails (Z = " + mag_text(e0.z0) + ")"
+                        : why;
         return c;
     }
     // The eigenpair bounds do not depend on rho_e (Z = z0 + z1 rho_e): only the check does.
