@@ -7,7 +7,7 @@ namespace renorm::doubling {
 
 using namespace renorm::series;
 
-Ball Problem::order_ball(slong prec) const
+Ball order_ball(const std::string& order, slong prec)
 {
     auto z = ball::from_string(order, prec);
     if (!z)
@@ -16,6 +16,11 @@ Ball Problem::order_ball(slong prec) const
     if (!arb_gt(z->get(), one.get()))
         throw std::invalid_argument("order z must be greater than 1, got " + order);
     return *z;
+}
+
+Ball Problem::order_ball(slong prec) const
+{
+    return doubling::order_ball(order, prec);
 }
 
 InnerMaps inner_maps(const BallPoly& g, const Problem& problem, slong n, slong prec)

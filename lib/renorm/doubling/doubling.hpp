@@ -27,6 +27,10 @@ using ball::BallMat;
 using ball::BallPoly;
 using series::Disc;
 
+/// z as a ball from its decimal text. Encloses the decimal number. Throws std::invalid_argument
+/// when the text is not a finite number greater than 1.
+Ball order_ball(const std::string& order, slong prec);
+
 /// The doubling problem for one order z of the critical point, on one disc.
 struct Problem {
     std::string order = "2"; ///< z as decimal text (converted to a ball at each precision)

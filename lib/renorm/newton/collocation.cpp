@@ -1,4 +1,5 @@
 #include <renorm/newton/collocation.hpp>
+#include <renorm/newton/detail/dense_solve.hpp>
 #include <renorm/newton/detail/scaled.hpp>
 #include <renorm/series/chebyshev.hpp>
 #include <renorm/series/series.hpp>
@@ -15,12 +16,6 @@ using namespace renorm::series;
 
 namespace {
 
-Ball order_ball(const std::string& order, slong prec)
-{
-    doubling::Problem p;
-    p.order = order;
-    return p.order_ball(prec);
-}
 
 double log10_max_abs(const BallVec& f)
 {
@@ -48,20 +43,6 @@ Ball alpha_of(const BallPoly& c, slong prec)
     return a;
 }
 
-/// Solves m x = rhs (approximately) and returns x as a vector; false when singular.
-bool approx_solve(BallVec& x, const BallMat& m, const BallVec& rhs, slong prec)
-{
-    const slong n = rhs.size();
-    BallMat b(n, 1), sol(n, 1);
-    for (slong i = 0; i < n; ++i)
-        arb_set(b.entry(i, 0), rhs[i]);
-    if (!arb_mat_approx_solve(sol.get(), m.get(), b.get(), prec))
-        return false;
-    x = BallVec(n);
-    for (slong i = 0; i < n; ++i)
-        arb_get_mid_arb(x[i], sol.entry(i, 0));
-    return true;
-}
 
 } // namespace
 
@@ -70,7 +51,7 @@ bool collocation_residual(BallVec& f, BallMat* jacobian, const BallPoly& c, cons
 {
     if (n < 2 || prec < 2)
         throw std::invalid_argument("collocation_residual: need n >= 2 and prec >= 2");
-    const Ball z = order_ball(order, prec);
+    const Ball z = doubling::order_ball(order, prec);
     BallVec y = chebyshev_points(n, prec);
     Ball g1, a, amz, a2, zm1;
     chebyshev_evaluate(g1, nullptr, c, Ball(slong{1}), prec);
@@ -190,7 +171,7 @@ CollocationFixedPoint approx_collocation_newton(const std::string& order, const 
         }
         prev = fp.log10_residual;
         BallVec d;
-        if (!approx_solve(d, j, f, prec)) {
+        if (!detail::approx_solve_dense(d, j, f, prec)) {
             fp.message = "the collocation Jacobian is numerically singular";
             return fp;
         }
@@ -218,7 +199,7 @@ CollocationFixedPoint approx_collocation_continuation(const std::string& order, 
         fp.message.insert(0, "no fixed point at z = 2: ");
         return fp;
     }
-    const double z_end = order_ball(order, 64).approx_double();
+    const double z_end = doubling::order_ball(order, 64).approx_double();
     double z = 2.0, step = std::clamp(z_end - 2.0, -0.5, 1.0);
     slong k = 0;
     while (z != z_end) {

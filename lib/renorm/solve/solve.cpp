@@ -150,6 +150,28 @@ void report_next_eigenvalues(Result& res, const std::vector<spectrum::ApproxEige
     }
 }
 
+/// delta at both truncations (the shorter first: refine(seed, digits, at_fine) may start the
+/// longer one from it), then the next eigenvalues; sets res.converged.
+template <class Refine>
+void finish_spectrum(Result& res, const Request& request, const std::vector<spectrum::ApproxEigen>& seeds,
+                     Refine&& refine)
+{
+    if (seeds.empty() || seeds[0].kind != spectrum::Kind::relevant) {
+        res.message = "no eigenvalue outside the unit disc was found";
+        return;
+    }
+    const double dd = static_cast<double>(request.digits) + guard_digits;
+    spectrum::Eigenpair d_coarse = refine(seeds[0], dd, false);
+    spectrum::Eigenpair d_fine = refine(seeds[0], dd, true);
+    if (!d_fine.converged || !d_coarse.converged) {
+        res.message = "delta: " + (d_fine.converged ? d_coarse.message : d_fine.message);
+        return;
+    }
+    res.delta = make_estimate(d_fine.lambda, d_coarse.lambda, request.digits);
+    report_next_eigenvalues(res, seeds, request.eigenvalues, request.digits, refine);
+    res.converged = true;
+}
+
 void solve_taylor(const Request& request, Result& res)
 {
     newton::FixedPoint start = newton::approx_continuation(res.problem, 40, 192, request.progress);
@@ -183,10 +205,6 @@ void solve_taylor(const Request& request, Result& res)
 
     const slong m = std::min<slong>(fine.g.length(), 80);
     std::vector<spectrum::ApproxEigen> seeds = spectrum::approx_eigenvalues_dense(fine.g, res.problem, m, 128);
-    if (seeds.empty() || seeds[0].kind != spectrum::Kind::relevant) {
-        res.message = "no eigenvalue outside the unit disc was found";
-        return;
-    }
     // The eigenpair at the longer truncation starts from the one at the shorter truncation, so
     // that it needs only the steps that the extra coefficients call for.
     spectrum::Eigenpair last_coarse;
@@ -201,16 +219,7 @@ void solve_taylor(const Request& request, Result& res)
         o.start = &last_coarse;
         return spectrum::approx_refine_eigenpair(fine, seed, digits, o);
     };
-    const double dd = static_cast<double>(request.digits) + guard_digits;
-    spectrum::Eigenpair d_coarse = refine(seeds[0], dd, false);
-    spectrum::Eigenpair d_fine = refine(seeds[0], dd, true);
-    if (!d_fine.converged || !d_coarse.converged) {
-        res.message = "delta: " + (d_fine.converged ? d_coarse.message : d_fine.message);
-        return;
-    }
-    res.delta = make_estimate(d_fine.lambda, d_coarse.lambda, request.digits);
-    report_next_eigenvalues(res, seeds, request.eigenvalues, request.digits, refine);
-    res.converged = true;
+    finish_spectrum(res, request, seeds, refine);
 }
 
 void solve_chebyshev(const Request& request, Result& res)
@@ -241,23 +250,10 @@ void solve_chebyshev(const Request& request, Result& res)
     res.log10_residual = fine.log10_residual;
     res.alpha = make_estimate(fine.a, coarse.a, request.digits);
     std::vector<spectrum::ApproxEigen> seeds = spectrum::approx_collocation_eigenvalues(fine, 80);
-    if (seeds.empty() || seeds[0].kind != spectrum::Kind::relevant) {
-        res.message = "no eigenvalue outside the unit disc was found";
-        return;
-    }
     auto refine = [&](const spectrum::ApproxEigen& seed, double digits, bool at_fine) {
         return spectrum::approx_collocation_eigenpair(at_fine ? fine : coarse, seed, digits);
     };
-    const double dd = static_cast<double>(request.digits) + guard_digits;
-    spectrum::Eigenpair d_fine = refine(seeds[0], dd, true);
-    spectrum::Eigenpair d_coarse = refine(seeds[0], dd, false);
-    if (!d_fine.converged || !d_coarse.converged) {
-        res.message = "delta: " + (d_fine.converged ? d_coarse.message : d_fine.message);
-        return;
-    }
-    res.delta = make_estimate(d_fine.lambda, d_coarse.lambda, request.digits);
-    report_next_eigenvalues(res, seeds, request.eigenvalues, request.digits, refine);
-    res.converged = true;
+    finish_spectrum(res, request, seeds, refine);
 }
 
 } // namespace

@@ -1,3 +1,4 @@
+#include <renorm/newton/detail/dense_solve.hpp>
 #include <renorm/newton/detail/scaled.hpp>
 #include <renorm/spectrum/collocation.hpp>
 
@@ -12,27 +13,6 @@ using ball::BallMat;
 using ball::BallVec;
 namespace detail = renorm::newton::detail;
 
-namespace {
-Ball order_ball(const std::string& order, slong prec)
-{
-    doubling::Problem p;
-    p.order = order;
-    return p.order_ball(prec);
-}
-bool approx_solve(BallVec& x, const BallMat& m, const BallVec& rhs, slong prec)
-{
-    const slong n = rhs.size();
-    BallMat b(n, 1), sol(n, 1);
-    for (slong i = 0; i < n; ++i)
-        arb_set(b.entry(i, 0), rhs[i]);
-    if (!arb_mat_approx_solve(sol.get(), m.get(), b.get(), prec))
-        return false;
-    x = BallVec(n);
-    for (slong i = 0; i < n; ++i)
-        arb_get_mid_arb(x[i], sol.entry(i, 0));
-    return true;
-}
-} // namespace
 
 std::vector<ApproxEigen> approx_collocation_eigenvalues(const newton::CollocationFixedPoint& fp, slong m)
 {
@@ -53,7 +33,7 @@ std::vector<ApproxEigen> approx_collocation_eigenvalues(const newton::Collocatio
         q(0, k) -= (k % 2 ? -1.0 : 1.0);
     Eigen::EigenSolver<Eigen::MatrixXd> es(a * q);
     const double alpha = fp.a.approx_double();
-    const double z = order_ball(fp.order, 64).approx_double();
+    const double z = doubling::order_ball(fp.order, 64).approx_double();
     std::vector<ApproxEigen> out;
     const double norm = a.norm();
     for (slong i = 0; i < m; ++i) {
@@ -128,7 +108,7 @@ Eigenpair approx_collocation_eigenpair(const newton::CollocationFixedPoint& fp, 
         }
         arb_one(jb.entry(n, js));
         BallVec d;
-        if (!approx_solve(d, jb, phi, prec)) {
+        if (!detail::approx_solve_dense(d, jb, phi, prec)) {
             ep.message = "the bordered eigen-system is numerically singular";
             return ep;
         }
