@@ -82,6 +82,7 @@ TEST(TableCompute, QuadraticRowAgreesWithPublishedDigits)
     EXPECT_GT(r.prec, 64);
     EXPECT_TRUE(r.note.empty()) << r.note;
     EXPECT_TRUE(r.radius.empty());
+    EXPECT_EQ(r.basis, "taylor");
 }
 
 TEST(TableCompute, QuarticAndSexticRowsAgreeWithBriggs)
@@ -187,6 +188,7 @@ TEST(TableCompute, RowMessageRoundTrip)
     a.radius = "1e-30";
     a.n = 80;
     a.prec = 300;
+    a.basis = "chebyshev";
     a.seconds = 0.1 + 0.2; // not a short decimal: must survive exactly
     a.note = "quote \" and, comma";
     TableRow b;

@@ -36,6 +36,7 @@ Table demo_table(int eigen, bool timing)
     a.n = 40;
     a.n_check = 48;
     a.prec = 181;
+    a.basis = "taylor";
     a.seconds = timing ? 1.25 : -1;
     TableRow b = a;
     b.order = "3.5";
@@ -103,7 +104,7 @@ TEST(TableIo, CsvHasProvenanceAndOneLinePerRow)
     EXPECT_NE(text.find("# status: mixed (1 certified, 1 estimated rows)\n"), std::string::npos);
     EXPECT_NE(text.find("# rows: 3 (1 failed)\n"), std::string::npos);
     EXPECT_NE(text.find("\nz,status,alpha,alpha_digits,delta,delta_digits,lambda1,lambda1_digits,"
-                        "lambda1_kind,radius,N,N_check,bits,seconds,note\n"),
+                        "lambda1_kind,radius,N,N_check,bits,basis,seconds,note\n"),
               std::string::npos);
     // the note with a comma and quotes is quoted, quotes doubled
     EXPECT_NE(text.find("\"a note, with \"\"quotes\"\", a | pipe"), std::string::npos);
@@ -134,7 +135,7 @@ TEST(TableIo, MarkdownHasProvenanceHeaderAndEqualColumnCounts)
             while (first < lines.size() && (lines[first].empty() || lines[first][0] != '|'))
                 ++first;
             ASSERT_LT(first + 2 + t.rows.size() - 1, lines.size());
-            const size_t columns = 5 + static_cast<size_t>(eigen) + 5 + (timing ? 1 : 0);
+            const size_t columns = 5 + static_cast<size_t>(eigen) + 6 + (timing ? 1 : 0);
             EXPECT_EQ(markdown_cells(lines[first]), columns) << lines[first];
             EXPECT_TRUE(std::regex_match(lines[first + 1], std::regex(R"(\|( -{3,}:? \|)+)")))
                 << lines[first + 1];
@@ -170,7 +171,7 @@ TEST(TableIo, LatexHasTabularWithMatchingColumnSpecAndEscapes)
             }
             ASSERT_LT(begin, lines.size());
             const std::string spec = lines[begin].substr(16, lines[begin].size() - 17);
-            const size_t columns = 5 + static_cast<size_t>(eigen) + 5 + (timing ? 1 : 0);
+            const size_t columns = 5 + static_cast<size_t>(eigen) + 6 + (timing ? 1 : 0);
             EXPECT_TRUE(std::regex_match(spec, std::regex("[lr]+"))) << spec;
             EXPECT_EQ(spec.size(), columns);
             EXPECT_EQ(lines[begin + 1], "\\hline");

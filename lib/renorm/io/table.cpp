@@ -35,7 +35,7 @@ std::vector<std::pair<std::string, std::string>> provenance_lines(const Table& t
     v.emplace_back("meaning",
                    "certified rows: every digit shown is proved (enclosure radius given); estimated "
                    "rows: digits on which two truncations N and N_check agree, not proved; "
-                   "N = truncation, bits = working precision");
+                   "N = truncation (terms of G in its basis), bits = working precision");
     return v;
 }
 
@@ -63,7 +63,7 @@ std::vector<std::string> csv_header(const Table& t)
         h.push_back(l + "_digits");
         h.push_back(l + "_kind");
     }
-    for (const char* s : {"radius", "N", "N_check", "bits"})
+    for (const char* s : {"radius", "N", "N_check", "bits", "basis"})
         h.emplace_back(s);
     if (t.timing)
         h.emplace_back("seconds");
@@ -89,6 +89,7 @@ std::vector<std::string> csv_cells(const Table& t, const TableRow& r)
     c.push_back(long_text(r.n));
     c.push_back(long_text(r.n_check));
     c.push_back(long_text(r.prec));
+    c.push_back(r.basis);
     if (t.timing)
         c.push_back(r.seconds < 0 ? std::string() : seconds_text(r.seconds));
     c.push_back(r.note);
@@ -194,6 +195,7 @@ std::vector<Column> display_header(const Table& t)
     h.push_back({"radius", "radius"});
     h.push_back({"N", "$N$"});
     h.push_back({"bits", "bits"});
+    h.push_back({"basis", "basis"});
     if (t.timing)
         h.push_back({"seconds", "seconds"});
     h.push_back({"note", "note"});
@@ -215,6 +217,7 @@ std::vector<std::string> display_cells(const Table& t, const TableRow& r)
     c.push_back(r.radius.empty() ? "-" : r.radius);
     c.push_back(r.n_check > 0 ? long_text(r.n) + "/" + long_text(r.n_check) : long_text(r.n));
     c.push_back(long_text(r.prec));
+    c.push_back(r.basis.empty() ? "-" : r.basis);
     if (t.timing)
         c.push_back(r.seconds < 0 ? std::string("-") : seconds_text(r.seconds));
     c.push_back(r.note.empty() ? "-" : r.note);
@@ -355,10 +358,10 @@ Table table_from_csv(const std::string& text)
             if (!magic)
                 throw std::invalid_argument("not a renorm table: the '# renorm-table 1' line is missing");
             header = f;
-            if (header.size() < 11 || header[0] != "z" || header[2] != "alpha" || header.back() != "note")
+            if (header.size() < 12 || header[0] != "z" || header[2] != "alpha" || header.back() != "note")
                 throw std::invalid_argument("CSV line " + std::to_string(line) + ": unknown header");
             t.timing = header[header.size() - 2] == "seconds";
-            const long fixed = 6 + 4 + (t.timing ? 1 : 0) + 1;
+            const long fixed = 6 + 5 + (t.timing ? 1 : 0) + 1;
             if ((static_cast<long>(header.size()) - fixed) % 3 != 0)
                 throw std::invalid_argument("CSV line " + std::to_string(line) +
                                             ": eigenvalue columns come in threes");
@@ -391,6 +394,7 @@ Table table_from_csv(const std::string& text)
         r.n = parse_long(f[i++], line);
         r.n_check = parse_long(f[i++], line);
         r.prec = parse_long(f[i++], line);
+        r.basis = f[i++];
         if (t.timing)
             r.seconds = parse_seconds(f[i++], line);
         r.note = f[i++];
@@ -434,6 +438,7 @@ std::string to_json(const Table& t)
         o["N"] = r.n;
         o["N_check"] = r.n_check;
         o["precision_bits"] = r.prec;
+        o["basis"] = r.basis;
         if (t.timing && r.seconds >= 0)
             o["seconds"] = seconds_text(r.seconds);
         if (!r.note.empty())

@@ -44,6 +44,7 @@ struct TableRow {
     long n = 0;          ///< truncation (estimates: the coarser of the two compared)
     long n_check = 0;    ///< the second truncation (estimates) or 0
     long prec = 0;       ///< working precision, bits
+    std::string basis;   ///< the basis G was solved in ("taylor", "chebyshev"); N counts its terms
     double seconds = -1; ///< wall time of the row; < 0 when not recorded
     std::string note;    ///< failure reason, or a remark (e.g. fewer digits than requested)
     bool operator==(const TableRow&) const = default;

@@ -60,6 +60,7 @@ io::TableRow estimated_row(const std::string& order, const RowOptions& o,
     row.n = r.n;
     row.n_check = r.n_check;
     row.prec = r.prec;
+    row.basis = solve::to_string(r.basis);
     if (!r.converged) {
         row.status = io::RowStatus::failed;
         row.note = "solver did not converge: " + r.message;
@@ -151,6 +152,7 @@ void certify_row(io::TableRow& row, const RowOptions& o, const newton::ProgressF
     row.n = c.data.n;
     row.n_check = 0;
     row.prec = c.data.prec;
+    row.basis = "taylor";
     row.note.clear();
     if (ca < o.digits || cd < o.digits)
         row.note = "the enclosures determine fewer digits than the " + std::to_string(o.digits) +
@@ -309,6 +311,7 @@ std::string rows_to_message(const std::vector<std::pair<size_t, io::TableRow>>& 
                      {"n", r.n},
                      {"n_check", r.n_check},
                      {"prec", r.prec},
+                     {"basis", r.basis},
                      {"seconds", r.seconds},
                      {"note", r.note}});
     }
@@ -333,6 +336,7 @@ std::vector<std::pair<size_t, io::TableRow>> rows_from_message(const std::string
             r.n = o.at("n").get<long>();
             r.n_check = o.at("n_check").get<long>();
             r.prec = o.at("prec").get<long>();
+            r.basis = o.at("basis").get<std::string>();
             r.seconds = o.at("seconds").get<double>();
             r.note = o.at("note").get<std::string>();
             out.emplace_back(o.at("index").get<size_t>(), std::move(r));
