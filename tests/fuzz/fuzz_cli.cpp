@@ -13,6 +13,13 @@
 #include <string>
 #include <vector>
 
+namespace {
+/// Thrown once parsing is complete, before any subcommand's callback.
+struct StopBeforeRun {
+    int unused = 0;
+};
+} // namespace
+
 extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size)
 {
     std::vector<std::string> args{"renorm"};
@@ -35,7 +42,6 @@ extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size
         argv.push_back(a.data());
     argv.push_back(nullptr);
 
-    struct StopBeforeRun {};
     CLI::App app;
     int code = 0;
     renorm::app::build_app(app, &code);
