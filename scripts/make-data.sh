@@ -3,7 +3,7 @@
 # renorm version and commit, the exact command, the date, and per row N, the working precision and
 # whether the row is certified or estimated. data/README.md lists the files.
 #
-#   bash scripts/make-data.sh [all|orders|z2-1000]     # default: all
+#   bash scripts/make-data.sh [all|orders|certified|z2-1000]     # default: all
 #
 # RENORM names the renorm binary (default build/apps/renorm; build it first). THREADS sets the
 # rows computed at once (default: one per core). A table in which some row failed is still
@@ -33,9 +33,14 @@ render() {
 }
 
 if [[ $what == all || $what == orders ]]; then
-    table alpha-delta-orders.csv --orders 1.5:8:0.5,10,12,16,24,32 --digits 100 --timing \
+    table alpha-delta-orders.csv --orders 1.5:8:0.5,10,12,16,24,32 --digits 100 --fallback 30,10 --timing \
         --title "alpha(z) and delta(z) for z = 1.5 to 32, 100 digits requested"
     render alpha-delta-orders.csv alpha-delta-orders.md markdown
+fi
+if [[ $what == all || $what == certified ]]; then
+    table alpha-delta-certified.csv --orders 1.5:6:0.5 --digits 50 --certify --timing \
+        --title "alpha(z) and delta(z) for z = 1.5 to 6 with proved enclosures, 50 digits requested"
+    render alpha-delta-certified.csv alpha-delta-certified.md markdown
 fi
 if [[ $what == all || $what == z2-1000 ]]; then
     table alpha-delta-z2-1000.csv --orders 2 --digits 1000 --timing \

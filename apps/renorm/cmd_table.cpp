@@ -43,6 +43,7 @@ struct TableArgs {
     bool quiet = false;
     std::string title;
     std::string from;
+    std::vector<long> fallback;
 };
 
 /// UTC date of the run, or of SOURCE_DATE_EPOCH when that is set (the reproducible-builds
@@ -86,6 +87,11 @@ std::string canonical_command(const TableArgs& a, const std::string& format)
         c += " --eigenvalues " + std::to_string(a.eigenvalues);
     if (a.certify)
         c += " --certify";
+    if (!a.fallback.empty()) {
+        c += " --fallback ";
+        for (size_t i = 0; i < a.fallback.size(); ++i)
+            c += (i ? "," : "") + std::to_string(a.fallback[i]);
+    }
     c += " --format " + format;
     if (a.timing)
         c += " --timing";
@@ -158,7 +164,8 @@ private:
 /// --from: re-renders a CSV table in another format, keeping its provenance and rows.
 int convert_table(const TableArgs& a)
 {
-    if (!a.orders.empty() || a.certify || a.eigenvalues != 0 || a.timing || !a.title.empty())
+    if (!a.orders.empty() || a.certify || a.eigenvalues != 0 || a.timing || !a.title.empty() ||
+        !a.fallback.empty())
         throw BadInput("--from converts an existing table and takes only --format, --out, --force");
     const io::TableFormat format = io::table_format_from_string(a.format);
     std::ifstream in(a.from, std::ios::binary);
@@ -194,6 +201,7 @@ int run_table(const TableArgs& a, const TableBackend& backend)
     opt.digits = a.digits;
     opt.eigenvalues = a.eigenvalues;
     opt.certify = a.certify;
+    opt.fallback_digits = a.fallback;
     table::validate(orders, opt, available_memory_bytes());
     if (a.threads < 0 || a.threads > 256)
         throw BadInput("--threads must be between 0 (one per core) and 256, got " +
@@ -298,6 +306,10 @@ void register_table_with(CLI::App& app, int* code, TableBackend backend)
     sub->add_flag("--certify", args->certify,
                   "prove enclosures for every row (rows whose proof does not close stay estimated, "
                   "with the reason)");
+    sub->add_option("--fallback", args->fallback,
+                    "retry a row that fails at --digits with these fewer digits, in turn "
+                    "(e.g. 30,10); the row's note says so")
+        ->delimiter(',');
     sub->add_option("--format", args->format, "csv, json, markdown or latex")->capture_default_str();
     sub->add_option("-o,--out", args->out, "write the table to FILE (atomically) instead of stdout");
     sub->add_flag("--force", args->force, "replace FILE when it exists");

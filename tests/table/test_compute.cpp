@@ -101,6 +101,24 @@ TEST(TableCompute, QuarticAndSexticRowsAgreeWithBriggs)
     EXPECT_EQ(r6.alpha.digits, 18);
 }
 
+TEST(TableCompute, CertifiedRowCarriesItsRadiusAndPublishedDigits)
+{
+    table::RowOptions o;
+    o.digits = 20;
+    o.certify = true;
+    const TableRow r = table::compute_row("2", o);
+    ASSERT_EQ(r.status, RowStatus::certified) << r.note;
+    EXPECT_FALSE(r.radius.empty());
+    EXPECT_EQ(r.n_check, 0);
+    EXPECT_EQ(r.alpha.digits, 20);
+    EXPECT_EQ(r.delta.digits, 20);
+    // OEIS A006891 / A006890 (reference_values.hpp)
+    expect_agrees(r.alpha.text, r.alpha.digits, test_ref::alpha_z2, "certified alpha(2)");
+    expect_agrees(r.delta.text, r.delta.digits, test_ref::delta_z2, "certified delta(2)");
+    // the radius is below 10^-20 relative to the values (the digits are determined)
+    EXPECT_LT(std::stod(r.radius), 1e-20) << r.radius;
+}
+
 TEST(TableCompute, ExpectAgreesCatchesAWrongDigit)
 {
     // the check used above fails on a last digit off by one, and on the circulating wrong tail
@@ -118,6 +136,26 @@ TEST(TableCompute, FailureBecomesAFailedRowWithTheReason)
     EXPECT_EQ(r.status, RowStatus::failed);
     EXPECT_NE(r.note.find("error:"), std::string::npos) << r.note;
     EXPECT_GE(r.seconds, 0.0);
+}
+
+TEST(TableCompute, FallbackRetriesAFailedRowWithFewerDigits)
+{
+    // No order fails cheaply at many digits and converges at fewer in a way that would stay true
+    // as the solver improves, so this checks the edges: a row that succeeds is not retried, an
+    // exception is still a failed row, and retry counts must lie below --digits. The retry
+    // itself shows in the shipped orders table (its notes).
+    table::RowOptions o;
+    o.digits = 12;
+    o.fallback_digits = {8, 4};
+    const TableRow bad = table::compute_row("not-a-number", o);
+    EXPECT_EQ(bad.status, RowStatus::failed);
+    const TableRow good = table::compute_row("2", o);
+    EXPECT_EQ(good.status, RowStatus::estimated);
+    EXPECT_EQ(good.alpha.digits, 12);
+    EXPECT_TRUE(good.note.empty()) << good.note;
+    table::RowOptions wrong = o;
+    wrong.fallback_digits = {12};
+    EXPECT_THROW(table::validate({"2"}, wrong, 1e12), std::invalid_argument);
 }
 
 TEST(TableCompute, SameRowsOnOneAndTwoThreads)

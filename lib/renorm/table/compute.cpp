@@ -173,6 +173,10 @@ void validate(const std::vector<std::string>& orders, const RowOptions& options,
     if (options.eigenvalues < 0 || options.eigenvalues > 50)
         throw std::invalid_argument("--eigenvalues must be between 0 and 50, got " +
                                     std::to_string(options.eigenvalues));
+    for (long d : options.fallback_digits)
+        if (d < 1 || d >= options.digits)
+            throw std::invalid_argument("--fallback digits must be between 1 and --digits - 1, got " +
+                                        std::to_string(d));
     if (options.certify && options.digits < 5)
         throw std::invalid_argument("--certify needs --digits of at least 5, got " +
                                     std::to_string(options.digits));
@@ -193,6 +197,17 @@ io::TableRow compute_row(const std::string& order, const RowOptions& options,
     row.order = order;
     try {
         row = estimated_row(order, options, progress);
+        for (long d : options.fallback_digits) {
+            if (row.status != io::RowStatus::failed || d >= options.digits)
+                break;
+            const std::string why = row.note;
+            RowOptions lower = options;
+            lower.digits = d;
+            row = estimated_row(order, lower, progress);
+            row.note = "no result at " + std::to_string(options.digits) + " digits (" + why +
+                       "); retried at " + std::to_string(d) + " digits" +
+                       (row.note.empty() ? "" : ": " + row.note);
+        }
         if (options.certify && row.status == io::RowStatus::estimated)
             certify_row(row, options, progress);
     } catch (const std::exception& e) {

@@ -18,6 +18,10 @@ struct RowOptions {
     long digits = 30;    ///< significant digits wanted for alpha and delta
     int eigenvalues = 0; ///< eigenvalues after delta to report (0-50)
     bool certify = false;///< also prove enclosures (certify::certify_constants)
+    /// Digit counts to retry an order with, in turn, when its estimate fails at `digits` (each
+    /// below `digits`); the row then says in its note what failed and at how many digits it
+    /// was retried. Empty: no retry.
+    std::vector<long> fallback_digits;
 };
 
 /// Checks the options (digits 1-5000, eigenvalues 0-50) and every order against the solver's
