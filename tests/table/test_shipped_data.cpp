@@ -32,7 +32,8 @@ namespace {
 using namespace renorm;
 using io::RowStatus;
 
-const char* const shipped[] = {"alpha-delta-orders.csv", "alpha-delta-z2-1000.csv"};
+const char* const shipped[] = {"alpha-delta-orders.csv", "alpha-delta-certified.csv",
+                               "alpha-delta-z2-1000.csv"};
 
 std::string read_text(const std::string& path)
 {
@@ -111,9 +112,28 @@ TEST(ShippedData, ProvenanceAndLabels)
 
 TEST(ShippedData, MarkdownCopyMatchesTheCsv)
 {
-    const io::Table t = load("alpha-delta-orders.csv");
-    EXPECT_EQ(read_text(std::string(RENORM_DATA_DIR) + "/alpha-delta-orders.md"),
-              io::to_markdown(t));
+    for (const char* name : {"alpha-delta-orders", "alpha-delta-certified"}) {
+        const io::Table t = load(std::string(name) + ".csv");
+        EXPECT_EQ(read_text(std::string(RENORM_DATA_DIR) + "/" + name + ".md"), io::to_markdown(t))
+            << name;
+    }
+}
+
+TEST(ShippedData, CertifiedTableIsCertifiedThroughout)
+{
+    const io::Table t = load("alpha-delta-certified.csv");
+    EXPECT_NE(t.provenance.command.find("--certify"), std::string::npos);
+    for (const auto& r : t.rows) {
+        EXPECT_EQ(r.status, RowStatus::certified) << "z = " << r.order << ": " << r.note;
+        // the digits shown are determined by a ball of this radius: it must be below one unit
+        // in the last digit shown
+        auto ulp = [](const io::TableValue& v) {
+            return std::pow(10.0, std::floor(std::log10(std::stod(v.text))) -
+                                      static_cast<double>(v.digits) + 1);
+        };
+        EXPECT_LT(std::stod(r.radius), std::min(ulp(r.alpha), ulp(r.delta))) << "z = " << r.order;
+    }
+    EXPECT_EQ(t.certification_summary(), "certified (every computed row is proved)");
 }
 
 TEST(ShippedData, PublishedValues)
@@ -152,7 +172,7 @@ TEST(ShippedData, PublishedValues)
             ++checked;
         }
     }
-    EXPECT_GE(checked, 4); // z = 2, 4, 6 in the orders table and z = 2 at 1000 digits
+    EXPECT_GE(checked, 7); // z = 2, 4, 6 in the orders and certified tables, z = 2 at 1000 digits
 }
 
 /// Recomputes `rows` at min(claimed, cap) digits and checks the shipped digits.

@@ -2,6 +2,7 @@
 
 #include <nlohmann/json.hpp>
 
+#include <algorithm>
 #include <cstdio>
 #include <sstream>
 #include <stdexcept>
@@ -315,6 +316,7 @@ Table table_from_csv(const std::string& text)
     long line = 0;
     bool magic = false;
     std::vector<std::string> header;
+    bool has_basis = true;
     while (pos < text.size()) {
         ++line;
         if (text[pos] == '#') {
@@ -361,13 +363,18 @@ Table table_from_csv(const std::string& text)
             if (header.size() < 12 || header[0] != "z" || header[2] != "alpha" || header.back() != "note")
                 throw std::invalid_argument("CSV line " + std::to_string(line) + ": unknown header");
             t.timing = header[header.size() - 2] == "seconds";
-            const long fixed = 6 + 5 + (t.timing ? 1 : 0) + 1;
+            // Tables written before the basis column existed are read too (basis left empty).
+            has_basis = std::find(header.begin(), header.end(), "basis") != header.end();
+            const long fixed = 6 + (has_basis ? 5 : 4) + (t.timing ? 1 : 0) + 1;
             if ((static_cast<long>(header.size()) - fixed) % 3 != 0)
                 throw std::invalid_argument("CSV line " + std::to_string(line) +
                                             ": eigenvalue columns come in threes");
             t.eigenvalue_columns = static_cast<int>((static_cast<long>(header.size()) - fixed) / 3);
             Table probe = t;
-            if (csv_header(probe) != header)
+            std::vector<std::string> expected = csv_header(probe);
+            if (!has_basis)
+                expected.erase(std::find(expected.begin(), expected.end(), "basis"));
+            if (expected != header)
                 throw std::invalid_argument("CSV line " + std::to_string(line) + ": unknown header");
             continue;
         }
@@ -394,7 +401,8 @@ Table table_from_csv(const std::string& text)
         r.n = parse_long(f[i++], line);
         r.n_check = parse_long(f[i++], line);
         r.prec = parse_long(f[i++], line);
-        r.basis = f[i++];
+        if (has_basis)
+            r.basis = f[i++];
         if (t.timing)
             r.seconds = parse_seconds(f[i++], line);
         r.note = f[i++];
