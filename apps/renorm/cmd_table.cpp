@@ -145,19 +145,24 @@ public:
             std::fprintf(stderr, "[%6.1fs] %zu/%zu rows done%s%s", s, m_done, m_orders.size(),
                          running.empty() ? "" : "; running z = ", running.c_str());
             std::fflush(stderr);
+            m_shown = true;
         };
     }
-    ~TableProgress()
+    /// Clears the status line (before anything else is printed).
+    void finish()
     {
-        if (m_on)
+        if (m_on && m_shown)
             std::fprintf(stderr, "\r\033[K");
+        m_shown = false;
     }
+    ~TableProgress() { finish(); }
 
 private:
     bool m_on;
     std::vector<std::string> m_orders;
     std::vector<bool> m_running;
     size_t m_done = 0;
+    bool m_shown = false;
     std::chrono::steady_clock::time_point m_start = std::chrono::steady_clock::now();
 };
 
@@ -231,6 +236,7 @@ int run_table(const TableArgs& a, const TableBackend& backend)
     const int threads = a.threads > 0 ? a.threads : hw;
     TableProgress progress(a.quiet || !backend.is_root, orders);
     std::vector<io::TableRow> rows = backend.compute(orders, opt, threads, progress.callback());
+    progress.finish();
     if (!backend.is_root)
         return exit_ok;
 
