@@ -22,5 +22,5 @@ foreach(bad "nonsense|--out|x.svg" "fixed-point|--out|x.pdf" "spectrum|--out|x.s
     add_test(NAME app.plot_rejects_${name} COMMAND "${CMAKE_COMMAND}"
              "-DCMD=$<TARGET_FILE:renorm_cli>;plot;${badargs}" -DEXPECT=2
              "-DSTDERR_REGEX=renorm: error: " -DONE_LINE=1
-             -P "${CMAKE_CURRENT_SOURCE_DIR}/cascade/expect_exit.cmake")
+             -P "${CMAKE_CURRENT_SOURCE_DIR}/cmake/expect_exit.cmake")
 endforeach()

@@ -2,7 +2,7 @@
 # bad input must exit with code 2 and a one-line message, a failed level with code 1.
 if(TARGET renorm_cli)
     set(_cli $<TARGET_FILE:renorm_cli>)
-    set(_expect ${CMAKE_CURRENT_SOURCE_DIR}/cascade/expect_exit.cmake)
+    set(_expect ${CMAKE_CURRENT_SOURCE_DIR}/cmake/expect_exit.cmake)
     add_test(NAME cascade_cli_table COMMAND ${_cli} cascade --family logistic --levels 9)
     set_tests_properties(cascade_cli_table PROPERTIES
         PASS_REGULAR_EXPRESSION "  9     512  3\\.5699441946[0-9]*.*All levels certified")

@@ -2,7 +2,7 @@
 # checked by regex, exit codes checked for bad input (2) and rejected certificates (3).
 if(TARGET renorm_cli)
     set(_cli $<TARGET_FILE:renorm_cli>)
-    set(_expect ${CMAKE_CURRENT_SOURCE_DIR}/certify/expect_exit.cmake)
+    set(_expect ${CMAKE_CURRENT_SOURCE_DIR}/cmake/expect_exit.cmake)
     set(_cert ${CMAKE_CURRENT_BINARY_DIR}/certify_smoke.cert.json)
     add_test(NAME certify_cli_z2 COMMAND ${_cli} certify --order 2 --digits 30 --out ${_cert})
     set_tests_properties(certify_cli_z2 PROPERTIES

@@ -14,7 +14,7 @@ endif()
 
 if(TARGET renorm_cli)
     set(_cli $<TARGET_FILE:renorm_cli>)
-    set(_expect ${CMAKE_CURRENT_SOURCE_DIR}/table/expect_exit.cmake)
+    set(_expect ${CMAKE_CURRENT_SOURCE_DIR}/cmake/expect_exit.cmake)
     set(_tmp ${CMAKE_CURRENT_BINARY_DIR}/table_cli)
     file(MAKE_DIRECTORY ${_tmp})
 

@@ -1,6 +1,7 @@
-# Runs a command and checks its exit code and, optionally, its stdout or stderr.
-# Usage: cmake -DCMD="prog;arg;..." -DEXPECT=3 [-DSTDERR_REGEX=...] [-DSTDOUT_REGEX=...]
-#        [-DPREPARE="prog;arg;..."] -P expect_exit.cmake
+# Runs a command and checks its exit code and, optionally, its stdout, its stderr, and that the
+# error is one line. Shared by the command-line tests of every module.
+# Usage: cmake -DCMD="prog;arg;..." -DEXPECT=2 [-DSTDERR_REGEX=...] [-DSTDOUT_REGEX=...]
+#        [-DONE_LINE=1] [-DPREPARE="prog;arg;..."] -P expect_exit.cmake
 if(DEFINED PREPARE)
     execute_process(COMMAND ${PREPARE} RESULT_VARIABLE prc)
     if(NOT prc EQUAL 0)
@@ -16,5 +17,10 @@ if(DEFINED STDERR_REGEX AND NOT err MATCHES "${STDERR_REGEX}")
 endif()
 if(DEFINED STDOUT_REGEX AND NOT out MATCHES "${STDOUT_REGEX}")
     message(FATAL_ERROR "stdout does not match '${STDOUT_REGEX}':\n${out}")
+endif()
+string(REGEX MATCHALL "\n" lines "${err}")
+list(LENGTH lines nlines)
+if(DEFINED ONE_LINE AND nlines GREATER 1)
+    message(FATAL_ERROR "expected a one-line error, got:\n${err}")
 endif()
 message(STATUS "exit code ${rc} as expected")
