@@ -1,4 +1,7 @@
 // Tests of the expression parser: values, precedence, and error reports with columns.
+// Sources of the check values: exact arithmetic and the values of elementary functions at simple
+// points (sin(pi/2) = 1, exp(0) = 1, ...), evaluated independently by Arb; operator precedence as in
+// ordinary mathematical notation (common practice).
 #include <renorm/cascade/expression.hpp>
 #include <renorm/cascade/jet_evaluator.hpp>
 

@@ -1,5 +1,7 @@
 // Extrapolation on sequences whose limit is known by construction (the algorithms, not the
 // physics: s_j = L + a r^j + b q^j with chosen L, a, r, b, q).
+// Sources of the check values: sequences built from closed forms with known limits (geometric
+// corrections to a known constant, partial sums of convergent series), so the exact limit is known.
 #include <renorm/cascade/extrapolate.hpp>
 
 #include <gtest/gtest.h>

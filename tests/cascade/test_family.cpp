@@ -1,4 +1,6 @@
 // Families: construction, bad input, and the critical point (given or found and proved).
+// Sources of the check values: the closed-form derivatives and critical points of each family
+// (e.g. f(x) = 1 - mu x^2 has f'(0) = 0; mu x(1 - x) has its maximum at 1/2), common practice.
 #include <renorm/cascade/family.hpp>
 
 #include <gtest/gtest.h>

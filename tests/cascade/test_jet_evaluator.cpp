@@ -1,5 +1,7 @@
 // Forward-mode derivatives against derivatives worked out by hand and evaluated directly with
 // Arb at 4x the precision (STYLE.md §6: containment against an independent truth).
+// Sources of the check values: derivatives of the test expressions computed by hand from the
+// rules of calculus (exact), and evaluated by Arb at 4x the precision.
 #include <renorm/cascade/expression.hpp>
 #include <renorm/cascade/jet_evaluator.hpp>
 

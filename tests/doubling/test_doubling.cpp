@@ -1,5 +1,8 @@
 // Tests of T and DT. The central one compares DT(G)h with a central finite-difference quotient
 // of T at high precision: a wrong sign or a dropped term in either formula makes it fail.
+// Sources of the check values: a central difference quotient of T (an independent route to DT),
+// and two exact identities of the doubling equation derived in DEVELOPERS.md (T(G)(0) = 1 and
+// DT 1 (0) = a^z at the fixed point).
 #include <renorm/doubling/doubling.hpp>
 #include <renorm/newton/fixed_point.hpp>
 
