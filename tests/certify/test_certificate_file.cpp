@@ -1,5 +1,5 @@
 // Tests of the certificate document: checksum, decimal rounding, write -> verify, rejections.
-// Sources of the check values: SHA-256 test vectors of FIPS 180-4 (appendix examples, "abc" and the
+// Sources of the check values: SHA-256 test vectors of FIPS 180-4 (the empty message, "abc" and the
 // two-block message); everything else is a round trip of the project's own file format.
 #include <renorm/io/certificate_file.hpp>
 #include <renorm/io/sha256.hpp>
