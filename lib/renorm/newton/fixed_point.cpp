@@ -1,10 +1,12 @@
 #include <renorm/newton/detail/scaled.hpp>
 #include <renorm/newton/fixed_point.hpp>
+#include <renorm/newton/krylov.hpp>
 
 #include <algorithm>
 #include <climits>
 #include <cmath>
 #include <limits>
+#include <memory>
 #include <stdexcept>
 
 namespace renorm::newton {
@@ -425,10 +427,108 @@ FixedPoint approx_refine_chord(const FixedPoint& start, slong digits, const Refi
     return fp;
 }
 
+namespace {
+
+/// G - T(G) = 0 for the Newton-Krylov driver: J = I - DT(G).
+class FixedPointEquation final : public KrylovProblem {
+public:
+    FixedPointEquation(const Problem& problem, double rate) : m_problem(problem), m_rate(rate) {}
+    slong length_for(double digits) const override { return approx_length_for_digits(digits, m_rate); }
+    double residual(BallVec& f, const BallVec& x, slong n, slong prec) override
+    {
+        Residual r = newton::residual(krylov_series(x, n), m_problem, n, prec);
+        f = krylov_vector(r.f, n);
+        m_a = r.a;
+        return r.log10_norm;
+    }
+    void linearize(const BallVec& x, slong n, slong prec) override
+    {
+        // The whole iterate enters DT even when the correction is shorter: compositions at
+        // degree < n use every coefficient of G once it is shifted to the inner map's centre.
+        m_lin = std::make_unique<Linearization>(krylov_series(x, x.size()), m_problem, n, prec);
+        m_n = n;
+    }
+    void apply(BallVec& y, const BallVec& v, slong prec) const override
+    {
+        BallPoly dt = m_lin->apply(krylov_series(v, m_n), prec);
+        y = BallVec(m_n);
+        for (slong k = 0; k < m_n; ++k) {
+            arb_poly_get_coeff_arb(y[k], dt.get(), k);
+            arb_sub(y[k], v[k], y[k], prec);
+        }
+    }
+    ball::BallMat small_jacobian(const BallVec& x, slong m, slong prec) const override
+    {
+        Linearization lin(krylov_series(x, x.size()), m_problem, m, prec);
+        ball::BallMat j = lin.matrix(prec);
+        arb_mat_neg(j.get(), j.get());
+        for (slong i = 0; i < m; ++i)
+            arb_add_ui(j.entry(i, i), j.entry(i, i), 1, prec);
+        return j;
+    }
+    double tail_scale(const BallVec&) const override { return 1.0; }
+    bool long_enough(const BallVec& x, slong n, double digits) const override
+    {
+        return log10_tail(krylov_series(x, n), n, 4) <= -(digits + 1.0);
+    }
+
+private:
+    Problem m_problem;
+    double m_rate;
+    Ball m_a;
+    std::unique_ptr<Linearization> m_lin;
+    slong m_n = 0;
+};
+
+} // namespace
+
+FixedPoint approx_refine_krylov(const FixedPoint& start, slong digits, const RefineOptions& options)
+{
+    if (digits < 1)
+        throw std::invalid_argument("approx_refine: digits must be >= 1");
+    const double rate = start.decay_rate > 0.05 ? start.decay_rate : 0.5;
+    FixedPointEquation eq(start.problem, rate);
+    KrylovState s;
+    if (options.resume) {
+        s = *options.resume;
+    } else {
+        s.n = start.n;
+        s.x = krylov_vector(start.g, start.n);
+        s.digits = std::isfinite(start.log10_residual) ? std::max(1.0, -start.log10_residual) : 1.0;
+    }
+    KrylovOptions ko;
+    ko.guard_digits = options.guard_digits;
+    ko.min_length = options.min_length;
+    ko.max_newton = std::min<slong>(options.max_steps, 200);
+    ko.progress = options.progress;
+    ko.on_step = options.on_step;
+    ko.stage = "newton-krylov";
+    ko.order = start.problem.order;
+    KrylovResult kr = approx_newton_krylov(eq, std::move(s), static_cast<double>(digits), ko);
+    FixedPoint fp = start;
+    fp.converged = kr.converged;
+    fp.message = kr.message;
+    fp.n = kr.state.n;
+    fp.prec = kr.prec;
+    fp.log10_residual = kr.log10_residual;
+    fp.steps = start.steps + kr.state.step;
+    fp.krylov_steps = kr.state.krylov_total;
+    fp.g = krylov_series(kr.state.x, kr.state.n);
+    fp.a = approx_alpha(fp.g, start.problem, std::max<slong>(fp.prec, 64));
+    return fp;
+}
+
 FixedPoint approx_refine(const FixedPoint& start, slong digits, const RefineOptions& options)
 {
-    return options.method == RefineMethod::chord ? approx_refine_chord(start, digits, options)
-                                                 : approx_refine_newton(start, digits, options);
+    switch (options.method) {
+    case RefineMethod::krylov:
+        return approx_refine_krylov(start, digits, options);
+    case RefineMethod::chord:
+        return approx_refine_chord(start, digits, options);
+    case RefineMethod::newton:
+        break;
+    }
+    return approx_refine_newton(start, digits, options);
 }
 
 } // namespace renorm::newton

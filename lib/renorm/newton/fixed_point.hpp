@@ -24,6 +24,7 @@ struct Progress {
     slong prec = 0;     ///< working precision, bits
     double log10_residual = 0;
     std::string order;  ///< the order z being worked on
+    double seconds_left = -1; ///< estimated time to the end of this stage (negative: unknown)
 };
 using ProgressFn = std::function<void(const Progress&)>;
 
@@ -36,6 +37,7 @@ struct FixedPoint {
     slong prec = 0;              ///< working precision of the last step, bits
     double log10_residual = 0;   ///< log10 of ||G - T_n(G)|| (l1 norm on the disc)
     slong steps = 0;             ///< Newton or chord steps taken
+    slong krylov_steps = 0;      ///< Krylov steps in all (Newton-Krylov path only)
     double decay_rate = 0;       ///< decimal digits per coefficient of the tail of G
     bool converged = false;
     std::string message;         ///< the reason when not converged
@@ -57,20 +59,27 @@ FixedPoint approx_newton(const Problem& problem, const BallPoly& guess, slong n,
 FixedPoint approx_continuation(const Problem& problem, slong n, slong prec,
                                const ProgressFn& progress = {});
 
-/// The two refinement variants (both tested; the bare approx_refine dispatches).
+struct KrylovState;
+
+/// The refinement variants (each tested; the bare approx_refine dispatches).
 enum class RefineMethod {
+    krylov, ///< Newton-Krylov with precision doubling (krylov.hpp): the fast path
     chord,  ///< one double LU, full-precision residual every step (13-16 digits a step)
     newton, ///< inexact Newton: residual at the target, inner solve at the correction's precision
 };
 
 /// Options of approx_refine().
 struct RefineOptions {
-    RefineMethod method = RefineMethod::chord;
+    RefineMethod method = RefineMethod::krylov;
     slong jacobian_size = 320; ///< size of the dense double Jacobian (identity beyond)
     slong max_steps = 600;
     double guard_digits = 10;  ///< digits solved beyond the target
     slong min_length = 0;      ///< a lower bound for the final truncation (e.g. 1.2 N)
     ProgressFn progress;
+    /// Newton-Krylov only: called with the state after every Newton step (a checkpoint) ...
+    std::function<void(const KrylovState&)> on_step;
+    /// ... and a saved state to continue from instead of `start` (it must outlive the call).
+    const KrylovState* resume = nullptr;
 };
 
 /// Chord iteration from `start` to a residual below 10^-(digits + guard): the Jacobian is factored
@@ -80,6 +89,9 @@ struct RefineOptions {
 FixedPoint approx_refine(const FixedPoint& start, slong digits, const RefineOptions& options);
 FixedPoint approx_refine_chord(const FixedPoint& start, slong digits, const RefineOptions& options);
 FixedPoint approx_refine_newton(const FixedPoint& start, slong digits, const RefineOptions& options);
+/// Newton-Krylov (krylov.hpp): residuals at the step's target precision only, corrections by
+/// preconditioned GMRES at the correction's precision; checkpoints through options.on_step.
+FixedPoint approx_refine_krylov(const FixedPoint& start, slong digits, const RefineOptions& options);
 
 /// The number of coefficients whose tail falls below 10^-digits at `rate` digits a term.
 slong approx_length_for_digits(double digits, double rate);

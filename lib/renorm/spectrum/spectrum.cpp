@@ -169,8 +169,8 @@ std::vector<ApproxEigen> approx_eigenvalues(const BallPoly& g, const doubling::P
     return approx_eigenvalues_matfree(g, problem, m, count, prec);
 }
 
-Eigenpair approx_refine_eigenpair(const newton::FixedPoint& fp, const ApproxEigen& seed,
-                                  double digits, const EigenOptions& options)
+Eigenpair approx_refine_eigenpair_chord(const newton::FixedPoint& fp, const ApproxEigen& seed,
+                                        double digits, const EigenOptions& options)
 {
     Eigenpair ep;
     if (std::fabs(seed.value.imag()) > 1e-12 * std::abs(seed.value)) {
@@ -311,6 +311,160 @@ Eigenpair approx_refine_eigenpair(const newton::FixedPoint& fp, const ApproxEige
     ep.h = h;
     ep.lambda = lambda;
     return ep;
+}
+
+namespace {
+
+/// Phi(h, lambda) = (DT h - lambda h, h_j - 1) = 0 for the Newton-Krylov driver, at a fixed
+/// point G known to more digits than asked.
+class EigenEquation final : public newton::KrylovProblem {
+public:
+    EigenEquation(const newton::FixedPoint& fp, slong jstar, double rate)
+        : m_fp(fp), m_jstar(jstar), m_rate(rate)
+    {
+    }
+    slong extras() const override { return 1; }
+    slong length_for(double digits) const override
+    {
+        return std::min(m_fp.g.length(), newton::approx_length_for_digits(digits, m_rate));
+    }
+    double residual(BallVec& f, const BallVec& x, slong n, slong prec) override
+    {
+        // DT at the residual's truncation and precision, kept while they do not change.
+        if (!m_res_lin || m_res_n != n || m_res_prec != prec) {
+            m_res_lin = std::make_unique<Linearization>(m_fp.g, m_fp.problem, n, prec);
+            m_res_n = n;
+            m_res_prec = prec;
+        }
+        BallPoly h = newton::krylov_series(x, n);
+        BallPoly r = m_res_lin->apply(h, prec);
+        BallPoly lh;
+        arb_poly_scalar_mul(lh.get(), h.get(), x[n], prec);
+        arb_poly_sub(r.get(), r.get(), lh.get(), prec);
+        arb_poly_truncate(r.get(), n);
+        r = approx_midpoints(r);
+        f = newton::krylov_vector(r, n, 1);
+        arb_sub_ui(f[n], x[m_jstar], 1, prec);
+        arb_get_mid_arb(f[n], f[n]);
+        return detail::log10_upper(norm_l1(r, prec)) - detail::log10_upper(norm_l1(h, prec));
+    }
+    void linearize(const BallVec& x, slong n, slong prec) override
+    {
+        m_lin = std::make_unique<Linearization>(m_fp.g, m_fp.problem, n, prec);
+        m_h = newton::krylov_series(x, n);
+        m_lambda = Ball(x[x.size() - 1]);
+        m_n = n;
+    }
+    void apply(BallVec& y, const BallVec& v, slong prec) const override
+    {
+        // J (dh, dl) = (DT dh - lambda dh - h dl, dh_j)
+        BallPoly dh = newton::krylov_series(v, m_n);
+        BallPoly out = m_lin->apply(dh, prec);
+        BallPoly t;
+        arb_poly_scalar_mul(t.get(), dh.get(), m_lambda.get(), prec);
+        arb_poly_sub(out.get(), out.get(), t.get(), prec);
+        arb_poly_scalar_mul(t.get(), m_h.get(), v[m_n], prec);
+        arb_poly_sub(out.get(), out.get(), t.get(), prec);
+        arb_poly_truncate(out.get(), m_n);
+        y = newton::krylov_vector(out, m_n, 1);
+        arb_set(y[m_n], v[m_jstar]);
+    }
+    ball::BallMat small_jacobian(const BallVec& x, slong m, slong prec) const override
+    {
+        const slong n = x.size() - 1;
+        Linearization lin(m_fp.g, m_fp.problem, m, prec);
+        ball::BallMat dt = lin.matrix(prec);
+        ball::BallMat j(m + 1, m + 1);
+        for (slong r = 0; r < m; ++r) {
+            for (slong c = 0; c < m; ++c)
+                arb_set(j.entry(r, c), dt.entry(r, c));
+            arb_sub(j.entry(r, r), j.entry(r, r), x[n], prec);
+            if (r < n)
+                arb_neg(j.entry(r, m), x[r]);
+        }
+        arb_one(j.entry(m, m_jstar));
+        return j;
+    }
+    double tail_scale(const BallVec& x) const override
+    {
+        return -arf_get_d(arb_midref(x[x.size() - 1]), ARF_RND_NEAR);
+    }
+
+private:
+    const newton::FixedPoint& m_fp;
+    slong m_jstar;
+    double m_rate;
+    std::unique_ptr<Linearization> m_res_lin, m_lin;
+    slong m_res_n = 0, m_res_prec = 0, m_n = 0;
+    BallPoly m_h;
+    Ball m_lambda;
+};
+
+} // namespace
+
+Eigenpair approx_refine_eigenpair_krylov(const newton::FixedPoint& fp, const ApproxEigen& seed, double digits,
+                                         const EigenOptions& options)
+{
+    Eigenpair ep;
+    if (std::fabs(seed.value.imag()) > 1e-12 * std::abs(seed.value)) {
+        ep.message = "complex eigenvalues are not refined";
+        return ep;
+    }
+    const double rate = fp.decay_rate > 0.05 ? fp.decay_rate : 0.5;
+    const slong m0 = std::min<slong>(static_cast<slong>(seed.vector.size()), fp.g.length());
+    if (m0 < 2) {
+        ep.message = "the seed eigenvector is too short";
+        return ep;
+    }
+    // Normalisation index: the largest coefficient of the seed (the same rule as the chord
+    // variant, so that both normalise the same way).
+    const slong m = std::min<slong>(options.jacobian_size, m0);
+    Eigen::VectorXd h0 = seed.vector.real().head(m);
+    Eigen::Index jstar = 0;
+    h0.cwiseAbs().maxCoeff(&jstar);
+    h0 /= h0(jstar);
+
+    EigenEquation eq(fp, static_cast<slong>(jstar), rate);
+    newton::KrylovState s;
+    if (options.resume) {
+        s = *options.resume;
+    } else if (options.start && options.start->converged) {
+        s.n = options.start->n;
+        s.x = newton::krylov_vector(options.start->h, s.n, 1);
+        arb_set(s.x[s.n], options.start->lambda.get());
+        s.digits = std::max(1.0, -options.start->log10_residual);
+    } else {
+        s.n = m;
+        BallPoly hp = from_doubles(h0.data(), m);
+        s.x = newton::krylov_vector(hp, m, 1);
+        arb_set_d(s.x[m], seed.value.real());
+        s.digits = 8; // a double eigenpair: the first residual tells the truth
+    }
+    newton::KrylovOptions ko;
+    ko.guard_digits = 0; // `digits` already includes the caller's guard
+    ko.min_length = std::min(options.min_length, fp.g.length());
+    ko.max_newton = std::min<slong>(options.max_steps, 200);
+    ko.progress = options.progress;
+    ko.on_step = options.on_step;
+    ko.stage = "eigen";
+    ko.order = fp.problem.order;
+    newton::KrylovResult kr = newton::approx_newton_krylov(eq, std::move(s), digits, ko);
+    ep.converged = kr.converged;
+    ep.message = kr.message;
+    ep.n = kr.state.n;
+    ep.prec = kr.prec;
+    ep.log10_residual = kr.log10_residual;
+    ep.steps = kr.state.step;
+    ep.h = newton::krylov_series(kr.state.x, kr.state.n);
+    ep.lambda = Ball(kr.state.x[kr.state.n]);
+    return ep;
+}
+
+Eigenpair approx_refine_eigenpair(const newton::FixedPoint& fp, const ApproxEigen& seed, double digits,
+                                  const EigenOptions& options)
+{
+    return options.method == EigenMethod::krylov ? approx_refine_eigenpair_krylov(fp, seed, digits, options)
+                                                 : approx_refine_eigenpair_chord(fp, seed, digits, options);
 }
 
 } // namespace renorm::spectrum

@@ -11,10 +11,12 @@
 
 #include <renorm/doubling/doubling.hpp>
 #include <renorm/newton/fixed_point.hpp>
+#include <renorm/newton/krylov.hpp>
 
 #include <Eigen/Dense>
 
 #include <complex>
+#include <functional>
 #include <string>
 #include <vector>
 
@@ -74,8 +76,15 @@ struct Eigenpair {
     std::string message;
 };
 
+/// The eigenpair refinement variants (each tested; approx_refine_eigenpair dispatches).
+enum class EigenMethod {
+    krylov, ///< Newton-Krylov on (h, lambda) with precision doubling (newton/krylov.hpp)
+    chord,  ///< chord steps with one bordered double LU (13-16 digits a step)
+};
+
 /// Options of approx_refine_eigenpair().
 struct EigenOptions {
+    EigenMethod method = EigenMethod::krylov;
     slong jacobian_size = 320;
     slong max_steps = 400;
     slong min_length = 0; ///< lower bound for the truncation
@@ -83,6 +92,10 @@ struct EigenOptions {
     /// instead of the double seed; it must outlive the call.
     const Eigenpair* start = nullptr;
     newton::ProgressFn progress;
+    /// Newton-Krylov only: called with the state after every Newton step (a checkpoint) ...
+    std::function<void(const newton::KrylovState&)> on_step;
+    /// ... and a saved state to continue from (it must outlive the call).
+    const newton::KrylovState* resume = nullptr;
 };
 
 /// Refines a real eigenpair of DT(G) at the fixed point `fp` to `digits` digits by chord steps
@@ -90,5 +103,11 @@ struct EigenOptions {
 /// refinement. `fp` must be accurate to at least `digits`. No guarantee.
 Eigenpair approx_refine_eigenpair(const newton::FixedPoint& fp, const ApproxEigen& seed,
                                   double digits, const EigenOptions& options);
+Eigenpair approx_refine_eigenpair_chord(const newton::FixedPoint& fp, const ApproxEigen& seed,
+                                        double digits, const EigenOptions& options);
+/// Newton-Krylov on Phi(h, lambda) = (DT h - lambda h, h_j - 1): residuals at the step's target
+/// precision, corrections by GMRES with J(dh, dl) = (DT dh - lambda dh - h dl, dh_j).
+Eigenpair approx_refine_eigenpair_krylov(const newton::FixedPoint& fp, const ApproxEigen& seed,
+                                         double digits, const EigenOptions& options);
 
 } // namespace renorm::spectrum

@@ -1,0 +1,136 @@
+#pragma once
+/// \file
+/// Newton-Krylov with a precision and truncation schedule (DEVELOPERS.md, "The Newton-Krylov
+/// path"). One driver serves the fixed point of T and the eigenpair of DT. Nothing here is
+/// proved: the results are estimates and starting points for certify/.
+///
+/// Each Newton step
+///   1. picks a target t = min(D, 2e - 2) digits from the e digits the iterate has, the truncation
+///      n the target needs and the precision of t digits;
+///   2. computes the residual F(x) at that truncation and precision (the only full-cost work);
+///   3. solves J delta = F to the t - e digits the correction needs, by flexible GMRES at that
+///      low precision on the first n_in = length(t - e) modes, with J applied matrix-free
+///      (one derivative evaluation per Krylov step, no matrix), and preconditioned by an LU of
+///      the m x m truncated Jacobian taken at an earlier iterate at moderate precision;
+///   4. x <- x - delta, and hands the state to a checkpoint callback.
+/// The costs therefore sum to about that of the last residual plus a few half-size derivative
+/// evaluations.
+
+#include <renorm/ball/ball.hpp>
+#include <renorm/newton/fixed_point.hpp>
+
+#include <functional>
+#include <memory>
+#include <string>
+#include <vector>
+
+namespace renorm::newton {
+
+using ball::BallMat;
+
+/// What the Newton-Krylov driver needs from a problem F(x) = 0. The unknown x is a vector of
+/// n series coefficients followed by extras() scalars (an eigenvalue, say); n changes with the
+/// schedule and the coefficients beyond n are zero.
+class KrylovProblem {
+public:
+    virtual ~KrylovProblem() = default;
+    /// Number of scalars after the series coefficients.
+    virtual slong extras() const { return 0; }
+    /// The truncation that resolves `digits` digits of the solution.
+    virtual slong length_for(double digits) const = 0;
+    /// F(x) at truncation n and precision prec into f (length n + extras). Returns log10 of the
+    /// size of F the stopping rule uses (absolute or relative, the problem's choice), NaN when
+    /// F is undefined at x.
+    virtual double residual(BallVec& f, const BallVec& x, slong n, slong prec) = 0;
+    /// Prepares J = F'(x) truncated at n for apply(). x has the length of the last residual.
+    virtual void linearize(const BallVec& x, slong n, slong prec) = 0;
+    /// y = J v (v and y of length n + extras, n from linearize()).
+    virtual void apply(BallVec& y, const BallVec& v, slong prec) const = 0;
+    /// The dense (m + extras) square matrix of F'(x) truncated at m (for the preconditioner).
+    virtual BallMat small_jacobian(const BallVec& x, slong m, slong prec) const = 0;
+    /// J on the modes beyond the preconditioner's block is taken as this multiple of the
+    /// identity (1 for G - T(G); -lambda for DT h - lambda h).
+    virtual double tail_scale(const BallVec& x) const = 0;
+    /// Whether the last coefficients of x lie below 10^-digits (the truncation is long enough).
+    virtual bool long_enough(const BallVec& /*x*/, slong /*n*/, double /*digits*/) const { return true; }
+};
+
+/// Everything a Newton-Krylov run needs to continue exactly where it stopped: a checkpoint.
+struct KrylovState {
+    BallVec x;               ///< current iterate (exact midpoints), length n + extras
+    slong n = 0;             ///< its truncation
+    double digits = 0;       ///< digits the iterate had at the last residual (-log10 of it)
+    slong step = 0;          ///< Newton steps done
+    slong krylov_total = 0;  ///< Krylov steps done
+    slong n_final = 0;       ///< the truncation the run ends at (grows if the tail is too long)
+    BallVec pc_point;        ///< iterate the preconditioner was built at (empty: none yet)
+    slong pc_size = 0;       ///< its block size m
+    slong pc_prec = 0;       ///< its precision, bits
+    double pc_digits = 0;    ///< digits pc_point had
+};
+
+/// Options of approx_newton_krylov().
+struct KrylovOptions {
+    double guard_digits = 10;  ///< digits solved beyond the request
+    slong max_newton = 60;
+    slong max_krylov = 40;      ///< Krylov steps per restart
+    slong max_restarts = 4;
+    slong precond_max = 400;    ///< largest preconditioner block m
+    double precond_digits = 150; ///< precision cap of the preconditioner, digits
+    slong min_length = 0;      ///< lower bound of the final truncation
+    ProgressFn progress;
+    std::string stage = "newton-krylov"; ///< progress label
+    std::string order;                   ///< progress label
+    /// Called after every Newton step with the state to save (a checkpoint).
+    std::function<void(const KrylovState&)> on_step;
+};
+
+/// The outcome of a Newton-Krylov run.
+struct KrylovResult {
+    KrylovState state;              ///< final state (x at the final truncation)
+    slong prec = 0;                 ///< precision of the last residual, bits
+    double log10_residual = 0;      ///< of the last residual
+    std::vector<slong> krylov_steps; ///< Krylov steps of each Newton step
+    bool converged = false;
+    std::string message;
+};
+
+/// Solves F(x) = 0 to `digits` (+ guard) digits by the schedule described at the top of this
+/// file, from `start` (its x, n and digits must be set; the other fields may be zero). To
+/// continue a checkpoint, pass the saved state: the run is deterministic, so it produces the
+/// same iterates as the uninterrupted run. No guarantee.
+/// Returns: converged == false with the reason when the residual stalls, F becomes undefined,
+/// GMRES fails to reach the tolerance, or max_newton steps pass.
+KrylovResult approx_newton_krylov(KrylovProblem& problem, KrylovState start, double digits,
+                                  const KrylovOptions& options);
+
+/// Flexible GMRES for J delta = b with right preconditioner `precondition`, at `prec` bits,
+/// to ||b - J delta||_2 <= 10^-rel_digits ||b||_2. Returns the Krylov steps taken, or -1 when
+/// the tolerance is not reached within max_steps * (restarts + 1). No guarantee.
+slong approx_fgmres(BallVec& delta, const BallVec& b,
+                    const std::function<void(BallVec&, const BallVec&)>& apply_j,
+                    const std::function<void(BallVec&, const BallVec&)>& precondition, double rel_digits,
+                    slong max_steps, slong restarts, slong prec);
+
+/// The series part x_0 .. x_{n-1} of an unknown vector as a polynomial. Exact.
+BallPoly krylov_series(const BallVec& x, slong n);
+/// An unknown vector of n + extras entries holding p's first n coefficients, extras zero. Exact.
+BallVec krylov_vector(const BallPoly& p, slong n, slong extras = 0);
+
+/// The preconditioner of approx_newton_krylov(): an LU of the problem's small Jacobian at a
+/// given point, the problem's tail scale beyond its block. No guarantee.
+class KrylovPreconditioner {
+public:
+    KrylovPreconditioner(const KrylovProblem& problem, const BallVec& point, slong m, slong prec);
+    /// y ~ J^-1 v for v of length n + extras, at prec bits (at most the preconditioner's own).
+    void apply(BallVec& y, const BallVec& v, slong n, slong prec) const;
+    slong size() const { return m_m; }
+
+private:
+    slong m_m, m_extras, m_prec;
+    double m_tail;
+    BallMat m_lu;
+    std::vector<slong> m_perm;
+};
+
+} // namespace renorm::newton
