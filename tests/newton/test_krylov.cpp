@@ -1,0 +1,180 @@
+// Tests of the Newton-Krylov path (newton/krylov.hpp). Check values: an exact rational linear
+// system (Sherman-Morrison closed form), the published 105 digits of alpha (OEIS A006891, see
+// reference_values.hpp) and 100 digits of delta (from memory, confirmed by the certified
+// enclosure of certify/; reference_values.hpp), and the chord variants as a second route.
+#include "reference_values.hpp"
+
+#include <renorm/newton/krylov.hpp>
+#include <renorm/spectrum/spectrum.hpp>
+
+#include <gtest/gtest.h>
+
+#include <cmath>
+#include <vector>
+
+using namespace renorm;
+using ball::Ball;
+using ball::BallVec;
+
+namespace {
+
+slong agreeing_digits(const Ball& x, const Ball& y)
+{
+    Ball d;
+    arb_sub(d.get(), x.get(), y.get(), ARF_PREC_EXACT);
+    arb_div(d.get(), d.get(), y.get(), 64);
+    arb_abs(d.get(), d.get());
+    if (arb_is_zero(d.get()))
+        return 100000;
+    // -log10 |d| through the exponent (|d| may be far below double range).
+    const double l2 = static_cast<double>(arf_abs_bound_lt_2exp_si(arb_midref(d.get())));
+    return static_cast<slong>(std::floor(-l2 * 0.30102999566398120));
+}
+
+slong agreeing_digits(const Ball& x, const char* ref)
+{
+    auto r = ball::from_string(ref, 4000);
+    return agreeing_digits(x, *r);
+}
+
+const newton::FixedPoint& start_z2()
+{
+    static newton::FixedPoint s = [] {
+        doubling::Problem p;
+        return newton::approx_continuation(p, 40, 192);
+    }();
+    return s;
+}
+
+} // namespace
+
+TEST(Krylov, FgmresSolvesIdentityPlusRankOneExactly)
+{
+    // J = I + u v^T with u_k = 1/(k+1), v_k = 2^-k: J^-1 b = b - u (v.b) / (1 + v.u)
+    // (Sherman-Morrison). Unpreconditioned GMRES needs exactly two steps on I + rank one.
+    const slong n = 12, prec = 400;
+    std::vector<double> u(n), v(n), b(n);
+    for (slong k = 0; k < n; ++k) {
+        u[k] = 1.0 / static_cast<double>(k + 1);
+        v[k] = std::ldexp(1.0, static_cast<int>(-k));
+        b[k] = static_cast<double>((k % 3) - 1);
+    }
+    auto apply = [&](BallVec& y, const BallVec& x) {
+        y = BallVec(n);
+        Ball vx;
+        for (slong k = 0; k < n; ++k) {
+            Ball t(v[k]);
+            arb_addmul(vx.get(), t.get(), x[k], prec);
+        }
+        for (slong k = 0; k < n; ++k) {
+            Ball t(u[k]);
+            arb_mul(y[k], t.get(), vx.get(), prec);
+            arb_add(y[k], y[k], x[k], prec);
+        }
+    };
+    auto identity = [](BallVec& y, const BallVec& x) { y = x; };
+    BallVec rhs(n), x;
+    for (slong k = 0; k < n; ++k)
+        arb_set_d(rhs[k], b[k]);
+    const slong steps = newton::approx_fgmres(x, rhs, apply, identity, 100, 10, 0, prec);
+    EXPECT_EQ(steps, 2);
+    double vb = 0, vu = 0;
+    for (slong k = 0; k < n; ++k) {
+        vb += v[k] * b[k];
+        vu += v[k] * u[k];
+    }
+    for (slong k = 0; k < n; ++k) {
+        const double exact = b[k] - u[k] * vb / (1 + vu);
+        EXPECT_NEAR(arf_get_d(arb_midref(x[k]), ARF_RND_NEAR), exact, 1e-15) << "k = " << k;
+    }
+    // The residual of the computed solution is at the requested 100 digits.
+    BallVec jx;
+    apply(jx, x);
+    for (slong k = 0; k < n; ++k) {
+        Ball d;
+        arb_sub(d.get(), jx[k], rhs[k], prec);
+        EXPECT_LT(std::fabs(d.approx_double()), 1e-95);
+    }
+}
+
+TEST(Krylov, FixedPointMatchesAlphaAndDoublesTheDigitsEachStep)
+{
+    newton::RefineOptions o;
+    o.method = newton::RefineMethod::krylov;
+    std::vector<double> residuals;
+    o.progress = [&](const newton::Progress& p) { residuals.push_back(p.log10_residual); };
+    newton::FixedPoint fp = newton::approx_refine(start_z2(), 105, o);
+    ASSERT_TRUE(fp.converged) << fp.message;
+    // Source: OEIS A006891 (reference_values.hpp).
+    EXPECT_GE(agreeing_digits(fp.a, test_ref::alpha_z2), 104) << ball::approx_decimal(fp.a, 110);
+    EXPECT_LE(fp.log10_residual, -115);
+    // Newton: from ~45 digits to 115 in at most 3 steps (one more residual confirms). A wrong
+    // Jacobian (a sign, a dropped term in DT) still converges, but linearly: this catches it.
+    EXPECT_LE(fp.steps - start_z2().steps, 3);
+    ASSERT_GE(residuals.size(), 3u);
+    EXPECT_LE(residuals[1], 1.7 * residuals[0]) << "the second residual did not square the first";
+    EXPECT_GT(fp.krylov_steps, 0);
+    EXPECT_LE(fp.krylov_steps, 12);
+}
+
+TEST(Krylov, FixedPointAgreesWithTheChordVariantTo250Digits)
+{
+    newton::RefineOptions o;
+    o.method = newton::RefineMethod::krylov;
+    newton::FixedPoint a = newton::approx_refine(start_z2(), 250, o);
+    o.method = newton::RefineMethod::chord;
+    newton::FixedPoint b = newton::approx_refine(start_z2(), 250, o);
+    ASSERT_TRUE(a.converged) << a.message;
+    ASSERT_TRUE(b.converged) << b.message;
+    EXPECT_EQ(a.n, b.n);
+    EXPECT_GE(agreeing_digits(a.a, b.a), 255);
+    EXPECT_LT(a.steps, b.steps);
+}
+
+TEST(Krylov, EigenpairMatchesDeltaAndTheChordVariant)
+{
+    newton::RefineOptions o;
+    newton::FixedPoint fp = newton::approx_refine(start_z2(), 130, o);
+    ASSERT_TRUE(fp.converged) << fp.message;
+    auto seeds = spectrum::approx_eigenvalues_dense(fp.g, fp.problem, 60, 128);
+    spectrum::EigenOptions eo;
+    eo.method = spectrum::EigenMethod::krylov;
+    spectrum::Eigenpair k = spectrum::approx_refine_eigenpair(fp, seeds[0], 115, eo);
+    eo.method = spectrum::EigenMethod::chord;
+    spectrum::Eigenpair c = spectrum::approx_refine_eigenpair(fp, seeds[0], 115, eo);
+    ASSERT_TRUE(k.converged) << k.message;
+    ASSERT_TRUE(c.converged) << c.message;
+    // Source: 100 digits of delta, from memory and confirmed by certify/ (reference_values.hpp).
+    EXPECT_GE(agreeing_digits(k.lambda, test_ref::delta_z2), 100) << ball::approx_decimal(k.lambda, 105);
+    EXPECT_GE(agreeing_digits(k.lambda, c.lambda), 112);
+    EXPECT_LE(k.log10_residual, -115);
+    EXPECT_LT(k.steps, c.steps);
+    // The next real eigenvalue (irrelevant, about -0.1237) converges as well.
+    spectrum::Eigenpair k2 = spectrum::approx_refine_eigenpair(fp, seeds[2], 40, {});
+    ASSERT_TRUE(k2.converged) << k2.message;
+    EXPECT_NEAR(k2.lambda.approx_double(), -0.123652712552687, 1e-14);
+}
+
+TEST(Krylov, ResumingFromAnySavedStateGivesTheSameIterate)
+{
+    // Determinism is what makes checkpoints safe: continuing from the state saved after step k
+    // must give bit for bit the result of the uninterrupted run.
+    std::vector<newton::KrylovState> saved;
+    newton::RefineOptions o;
+    o.method = newton::RefineMethod::krylov;
+    o.on_step = [&](const newton::KrylovState& s) { saved.push_back(s); };
+    newton::FixedPoint full = newton::approx_refine(start_z2(), 200, o);
+    ASSERT_TRUE(full.converged) << full.message;
+    ASSERT_GE(saved.size(), 2u);
+    for (size_t k = 0; k < saved.size(); ++k) {
+        newton::RefineOptions r;
+        r.method = newton::RefineMethod::krylov;
+        r.resume = &saved[k];
+        newton::FixedPoint resumed = newton::approx_refine(start_z2(), 200, r);
+        ASSERT_TRUE(resumed.converged) << resumed.message;
+        EXPECT_EQ(resumed.n, full.n);
+        EXPECT_EQ(resumed.steps, full.steps);
+        EXPECT_EQ(resumed.krylov_steps, full.krylov_steps);
+        EXPECT_TRUE(arb_poly_equal(resumed.g.get(), full.g.get())) << "resumed after step " << k + 1;
+    }
+}
