@@ -320,7 +320,11 @@ KrylovResult approx_newton_krylov(KrylovProblem& problem, KrylovState state, dou
             state.pc_size = std::clamp<slong>(static_cast<slong>(std::ceil(3.0 * q_want)) + 30, 8,
                                               std::min(options.precond_max, n));
             state.pc_prec = bits_for(q_want + 10);
-            state.pc_point = x;
+            // Kept at the preconditioner's own precision: all it is used at, and a small
+            // checkpoint (a resumed run rebuilds the same LU from it).
+            state.pc_point = BallVec(x.size());
+            for (slong i = 0; i < x.size(); ++i)
+                arb_set_round(state.pc_point[i], x[i], state.pc_prec);
             state.pc_digits = q_want;
             pc = std::make_unique<KrylovPreconditioner>(problem, state.pc_point, state.pc_size, state.pc_prec);
         }
