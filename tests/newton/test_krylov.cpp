@@ -178,3 +178,30 @@ TEST(Krylov, ResumingFromAnySavedStateGivesTheSameIterate)
         EXPECT_TRUE(arb_poly_equal(resumed.g.get(), full.g.get())) << "resumed after step " << k + 1;
     }
 }
+
+TEST(Krylov, DenseInnerSolveGivesTheSameDigitsInTheSameNewtonSteps)
+{
+    // The dense path (bench/fast_vs_dense) differs only in the linear solve of each step.
+    newton::RefineOptions o;
+    o.method = newton::RefineMethod::dense;
+    newton::FixedPoint d = newton::approx_refine(start_z2(), 120, o);
+    o.method = newton::RefineMethod::krylov;
+    newton::FixedPoint k = newton::approx_refine(start_z2(), 120, o);
+    ASSERT_TRUE(d.converged) << d.message;
+    ASSERT_TRUE(k.converged) << k.message;
+    EXPECT_EQ(d.krylov_steps, 0);
+    EXPECT_EQ(d.n, k.n);
+    EXPECT_LE(std::abs(d.steps - k.steps), 1);
+    EXPECT_GE(agreeing_digits(d.a, k.a), 128);
+    // Source: OEIS A006891 (reference_values.hpp).
+    EXPECT_GE(agreeing_digits(d.a, test_ref::alpha_z2), 104);
+
+    newton::FixedPoint fp = newton::approx_refine(start_z2(), 70, {});
+    auto seeds = spectrum::approx_eigenvalues_dense(fp.g, fp.problem, 40, 128);
+    spectrum::EigenOptions eo;
+    eo.method = spectrum::EigenMethod::dense;
+    spectrum::Eigenpair e = spectrum::approx_refine_eigenpair(fp, seeds[0], 60, eo);
+    ASSERT_TRUE(e.converged) << e.message;
+    // Source: delta to 100 digits, from memory and certified (reference_values.hpp).
+    EXPECT_GE(agreeing_digits(e.lambda, test_ref::delta_z2), 58);
+}

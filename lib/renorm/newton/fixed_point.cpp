@@ -502,7 +502,8 @@ FixedPoint approx_refine_krylov(const FixedPoint& start, slong digits, const Ref
     ko.max_newton = std::min<slong>(options.max_steps, 200);
     ko.progress = options.progress;
     ko.on_step = options.on_step;
-    ko.stage = "newton-krylov";
+    ko.stage = options.method == RefineMethod::dense ? "newton-dense" : "newton-krylov";
+    ko.dense_inner = options.method == RefineMethod::dense;
     ko.order = start.problem.order;
     KrylovResult kr = approx_newton_krylov(eq, std::move(s), static_cast<double>(digits), ko);
     FixedPoint fp = start;
@@ -522,6 +523,7 @@ FixedPoint approx_refine(const FixedPoint& start, slong digits, const RefineOpti
 {
     switch (options.method) {
     case RefineMethod::krylov:
+    case RefineMethod::dense:
         return approx_refine_krylov(start, digits, options);
     case RefineMethod::chord:
         return approx_refine_chord(start, digits, options);

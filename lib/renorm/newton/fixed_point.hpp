@@ -64,6 +64,7 @@ struct KrylovState;
 /// The refinement variants (each tested; the bare approx_refine dispatches).
 enum class RefineMethod {
     krylov, ///< Newton-Krylov with precision doubling (krylov.hpp): the fast path
+    dense,  ///< the same Newton schedule with a dense LU of the whole Jacobian (for comparison)
     chord,  ///< one double LU, full-precision residual every step (13-16 digits a step)
     newton, ///< inexact Newton: residual at the target, inner solve at the correction's precision
 };

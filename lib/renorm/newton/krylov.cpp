@@ -69,6 +69,26 @@ double step_size(slong n, slong prec)
     return static_cast<double>(n) * std::pow(static_cast<double>(prec), 1.9);
 }
 
+/// The dense alternative to GMRES: delta = J^-1 b with J the problem's whole n x n (+ extras)
+/// Jacobian, LU at prec. Returns 0 (no Krylov steps), or -1 when J is singular.
+slong dense_solve(BallVec& delta, const KrylovProblem& problem, const BallVec& x, const BallVec& b, slong n,
+                  slong prec)
+{
+    const slong len = n + problem.extras();
+    BallMat j = problem.small_jacobian(x, n, prec);
+    arb_mat_get_mid(j.get(), j.get());
+    BallMat rhs(len, 1), sol(len, 1);
+    for (slong i = 0; i < len; ++i)
+        arb_set(rhs.entry(i, 0), b[i]);
+    if (!arb_mat_approx_solve(sol.get(), j.get(), rhs.get(), prec))
+        return -1;
+    delta = BallVec(len);
+    for (slong i = 0; i < len; ++i)
+        arb_set(delta[i], sol.entry(i, 0));
+    drop_radii(delta);
+    return 0;
+}
+
 } // namespace
 
 BallPoly krylov_series(const BallVec& x, slong n)
@@ -344,10 +364,14 @@ KrylovResult approx_newton_krylov(KrylovProblem& problem, KrylovState state, dou
         problem.linearize(x, n_in, p_in);
         BallVec b = resized(f, n, n_in, ex);
         BallVec d_in;
-        const slong ks = approx_fgmres(
+        const slong ks = options.dense_inner ? dense_solve(d_in, problem, x, b, n_in, p_in) : approx_fgmres(
             d_in, b, [&](BallVec& y, const BallVec& v) { problem.apply(y, v, p_in); },
             [&](BallVec& y, const BallVec& v) { pc->apply(y, v, n_in, p_in); }, k_rel, options.max_krylov,
             options.max_restarts, p_in);
+        if (ks < 0 && options.dense_inner) {
+            res.message = "Newton: the dense Jacobian is numerically singular at step " + std::to_string(state.step);
+            break;
+        }
         if (ks < 0) {
             res.message = "Newton-Krylov: GMRES did not reach 1e-" + std::to_string(static_cast<int>(k_rel)) +
                           " in " + std::to_string(options.max_krylov * (options.max_restarts + 1)) +

@@ -78,6 +78,10 @@ struct KrylovOptions {
     slong precond_max = 400;    ///< largest preconditioner block m
     double precond_digits = 150; ///< precision cap of the preconditioner, digits
     slong min_length = 0;      ///< lower bound of the final truncation
+    /// The linear solve of each Newton step: GMRES (the fast path), or for comparison the dense
+    /// LU of the whole n_in x n_in Jacobian at the correction's precision (the dense path:
+    /// same schedule, N^3 work).
+    bool dense_inner = false;
     ProgressFn progress;
     std::string stage = "newton-krylov"; ///< progress label
     std::string order;                   ///< progress label

@@ -447,6 +447,7 @@ Eigenpair approx_refine_eigenpair_krylov(const newton::FixedPoint& fp, const App
     ko.progress = options.progress;
     ko.on_step = options.on_step;
     ko.stage = "eigen";
+    ko.dense_inner = options.method == EigenMethod::dense;
     ko.order = fp.problem.order;
     newton::KrylovResult kr = newton::approx_newton_krylov(eq, std::move(s), digits, ko);
     ep.converged = kr.converged;
@@ -463,8 +464,8 @@ Eigenpair approx_refine_eigenpair_krylov(const newton::FixedPoint& fp, const App
 Eigenpair approx_refine_eigenpair(const newton::FixedPoint& fp, const ApproxEigen& seed, double digits,
                                   const EigenOptions& options)
 {
-    return options.method == EigenMethod::krylov ? approx_refine_eigenpair_krylov(fp, seed, digits, options)
-                                                 : approx_refine_eigenpair_chord(fp, seed, digits, options);
+    return options.method == EigenMethod::chord ? approx_refine_eigenpair_chord(fp, seed, digits, options)
+                                                : approx_refine_eigenpair_krylov(fp, seed, digits, options);
 }
 
 } // namespace renorm::spectrum

@@ -79,6 +79,7 @@ struct Eigenpair {
 /// The eigenpair refinement variants (each tested; approx_refine_eigenpair dispatches).
 enum class EigenMethod {
     krylov, ///< Newton-Krylov on (h, lambda) with precision doubling (newton/krylov.hpp)
+    dense,  ///< the same Newton schedule with a dense LU of the whole bordered Jacobian
     chord,  ///< chord steps with one bordered double LU (13-16 digits a step)
 };
 
