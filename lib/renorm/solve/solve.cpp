@@ -2,11 +2,13 @@
 #include <renorm/solve/solve.hpp>
 #include <renorm/newton/collocation.hpp>
 #include <renorm/spectrum/collocation.hpp>
+#include <renorm/version.hpp>
 
 #include <algorithm>
 #include <chrono>
 #include <cmath>
 #include <stdexcept>
+#include <type_traits>
 
 namespace renorm::solve {
 
@@ -97,6 +99,10 @@ void validate(const Request& request, double memory_limit_bytes)
     if (request.eigenvalues < 0 || request.eigenvalues > 50)
         throw std::invalid_argument("--eigenvalues must be between 0 and 50, got " +
                                     std::to_string(request.eigenvalues));
+    if ((!request.checkpoint_path.empty() || request.resume) && choose_basis(request) != Basis::taylor)
+        throw std::invalid_argument("checkpoints (--checkpoint, --resume) are supported for the Taylor basis "
+                                    "only (z <= 6, or --basis taylor); z = " + request.order +
+                                    " uses the Chebyshev basis");
     Cost c = estimate_cost(request);
     if (c.bytes > memory_limit_bytes) {
         char buf[256];
@@ -122,12 +128,136 @@ std::string to_string(Basis b)
     return "";
 }
 
+std::vector<std::string> stage_names(const Request& request)
+{
+    std::vector<std::string> names{"fixed-point@N", "fixed-point@1.2N", "delta@N", "delta@1.2N"};
+    for (slong k = 1; k <= request.eigenvalues; ++k) {
+        names.push_back("eigenvalue-" + std::to_string(k) + "@N");
+        names.push_back("eigenvalue-" + std::to_string(k) + "@1.2N");
+    }
+    return names;
+}
+
+void check_resume(const Request& request, const io::Checkpoint& c)
+{
+    auto differs = [](const std::string& what, const std::string& saved, const std::string& asked) {
+        throw std::invalid_argument("the checkpoint was written for " + what + " " + saved + ", this run asks for " +
+                                    what + " " + asked + " (resume with the same request)");
+    };
+    if (c.order != request.order)
+        differs("--order", c.order, request.order);
+    if (c.digits != request.digits)
+        differs("--digits", std::to_string(c.digits), std::to_string(request.digits));
+    if (c.eigenvalues != request.eigenvalues)
+        differs("--eigenvalues", std::to_string(c.eigenvalues), std::to_string(request.eigenvalues));
+    if (c.basis != to_string(choose_basis(request)))
+        differs("--basis", c.basis, to_string(choose_basis(request)));
+    const std::vector<std::string> names = stage_names(request);
+    auto known = [&](const std::string& name, bool eigen) {
+        const bool is_eigen = name.rfind("fixed-point@", 0) != 0;
+        if (std::find(names.begin(), names.end(), name) == names.end() || is_eigen != eigen)
+            throw std::invalid_argument("the checkpoint names a stage '" + name + "' that this run does not have");
+    };
+    for (const auto& [name, fp] : c.fixed_points)
+        known(name, false);
+    for (const auto& [name, ep] : c.eigenpairs)
+        known(name, true);
+    if (!c.running.empty()) {
+        const bool eigen = c.running.rfind("fixed-point@", 0) != 0;
+        known(c.running, eigen);
+        // The unknowns: n series coefficients, and the eigenvalue after them for an eigenpair.
+        if (c.state.x.size() != c.state.n + (eigen ? 1 : 0))
+            throw std::invalid_argument("the checkpoint's running stage '" + c.running + "' has " +
+                                        std::to_string(c.state.x.size()) + " unknowns for truncation " +
+                                        std::to_string(c.state.n));
+    }
+}
+
 namespace {
 
 constexpr double guard_digits = 10;
 
+/// What a stage runs with: the saved state to continue from (or null), the per-step checkpoint
+/// callback, and a progress callback labelled with the stage's name.
+struct StageHooks {
+    const newton::KrylovState* resume = nullptr;
+    std::function<void(const newton::KrylovState&)> on_step;
+    newton::ProgressFn progress;
+};
+
+/// The stages of one run and their checkpoint: a stage finished in the resumed checkpoint is
+/// reused, the running one continues from its state, any other runs; every Newton step and every
+/// finished stage is recorded (and written when the request names a file).
+class Stages {
+public:
+    Stages(const Request& request, Basis basis) : m_request(request)
+    {
+        m_active = !request.checkpoint_path.empty() || request.resume || request.on_checkpoint;
+        if (request.resume) {
+            check_resume(request, *request.resume);
+            m_ck = *request.resume;
+        } else {
+            m_ck.order = request.order;
+            m_ck.digits = request.digits;
+            m_ck.eigenvalues = request.eigenvalues;
+            m_ck.basis = to_string(basis);
+        }
+        m_ck.version = renorm::version;
+        m_ck.commit = renorm::git_commit;
+    }
+
+    /// fn(const StageHooks&) -> newton::FixedPoint or spectrum::Eigenpair.
+    template <class Fn>
+    auto run(const std::string& name, Fn&& fn)
+    {
+        using R = std::invoke_result_t<Fn, const StageHooks&>;
+        auto& done = finished(static_cast<R*>(nullptr));
+        if (auto it = done.find(name); it != done.end())
+            return it->second;
+        StageHooks h;
+        if (m_request.resume && m_request.resume->running == name)
+            h.resume = &m_request.resume->state;
+        if (m_request.progress)
+            h.progress = [this, name](const newton::Progress& p) {
+                newton::Progress q = p;
+                q.stage = name;
+                m_request.progress(q);
+            };
+        if (m_active)
+            h.on_step = [this, name](const newton::KrylovState& s) {
+                m_ck.running = name;
+                m_ck.state = s;
+                save();
+            };
+        R r = fn(h);
+        if (m_active && r.converged) {
+            done[name] = r;
+            m_ck.running.clear();
+            m_ck.state = newton::KrylovState{};
+            save();
+        }
+        return r;
+    }
+
+private:
+    std::map<std::string, newton::FixedPoint>& finished(newton::FixedPoint*) { return m_ck.fixed_points; }
+    std::map<std::string, spectrum::Eigenpair>& finished(spectrum::Eigenpair*) { return m_ck.eigenpairs; }
+
+    void save()
+    {
+        if (!m_request.checkpoint_path.empty())
+            io::write_checkpoint(m_request.checkpoint_path, m_ck);
+        if (m_request.on_checkpoint)
+            m_request.on_checkpoint(m_ck);
+    }
+
+    const Request& m_request;
+    bool m_active = false;
+    io::Checkpoint m_ck;
+};
+
 /// Fills res.eigenvalues from the seeds after delta, refining the real ones with `refine`
-/// (called as refine(seed, digits, fine?)).
+/// (called as refine(seed, digits, fine?, label) with label "eigenvalue-K").
 template <class Refine>
 void report_next_eigenvalues(Result& res, const std::vector<spectrum::ApproxEigen>& seeds, slong count,
                              slong digits, Refine&& refine)
@@ -139,8 +269,9 @@ void report_next_eigenvalues(Result& res, const std::vector<spectrum::ApproxEige
         rep.kind = seeds[i].kind;
         rep.power = seeds[i].power;
         if (std::fabs(rep.approx.imag()) <= 1e-12 * std::abs(rep.approx)) {
-            spectrum::Eigenpair c = refine(seeds[i], next_digits + guard_digits, false);
-            spectrum::Eigenpair f = refine(seeds[i], next_digits + guard_digits, true);
+            const std::string label = "eigenvalue-" + std::to_string(i);
+            spectrum::Eigenpair c = refine(seeds[i], next_digits + guard_digits, false, label);
+            spectrum::Eigenpair f = refine(seeds[i], next_digits + guard_digits, true, label);
             if (f.converged && c.converged) {
                 rep.refined = make_estimate(f.lambda, c.lambda, next_digits);
                 rep.is_refined = true;
@@ -150,8 +281,8 @@ void report_next_eigenvalues(Result& res, const std::vector<spectrum::ApproxEige
     }
 }
 
-/// delta at both truncations (the shorter first: refine(seed, digits, at_fine) may start the
-/// longer one from it), then the next eigenvalues; sets res.converged.
+/// delta at both truncations (the shorter first: refine(seed, digits, at_fine, label) may start
+/// the longer one from it), then the next eigenvalues; sets res.converged.
 template <class Refine>
 void finish_spectrum(Result& res, const Request& request, const std::vector<spectrum::ApproxEigen>& seeds,
                      Refine&& refine)
@@ -161,8 +292,8 @@ void finish_spectrum(Result& res, const Request& request, const std::vector<spec
         return;
     }
     const double dd = static_cast<double>(request.digits) + guard_digits;
-    spectrum::Eigenpair d_coarse = refine(seeds[0], dd, false);
-    spectrum::Eigenpair d_fine = refine(seeds[0], dd, true);
+    spectrum::Eigenpair d_coarse = refine(seeds[0], dd, false, "delta");
+    spectrum::Eigenpair d_fine = refine(seeds[0], dd, true, "delta");
     if (!d_fine.converged || !d_coarse.converged) {
         res.message = "delta: " + (d_fine.converged ? d_coarse.message : d_fine.message);
         return;
@@ -174,21 +305,32 @@ void finish_spectrum(Result& res, const Request& request, const std::vector<spec
 
 void solve_taylor(const Request& request, Result& res)
 {
+    // The continuation and the dense seeds are cheap and deterministic: a resumed run recomputes
+    // them. The four kinds of Newton-Krylov stages go through `stages` (checkpoint and resume).
+    Stages stages(request, Basis::taylor);
     newton::FixedPoint start = newton::approx_continuation(res.problem, 40, 192, request.progress);
     if (!start.converged) {
         res.message = start.message;
         return;
     }
-    newton::RefineOptions ro;
-    ro.progress = request.progress;
-    ro.guard_digits = guard_digits;
-    newton::FixedPoint coarse = newton::approx_refine(start, request.digits, ro);
+    auto refine_fixed_point = [&](const newton::FixedPoint& from, slong min_length) {
+        return [&from, min_length, &request](const StageHooks& h) {
+            newton::RefineOptions ro;
+            ro.progress = h.progress;
+            ro.on_step = h.on_step;
+            ro.resume = h.resume;
+            ro.guard_digits = guard_digits;
+            ro.min_length = min_length;
+            return newton::approx_refine(from, request.digits, ro);
+        };
+    };
+    newton::FixedPoint coarse = stages.run("fixed-point@N", refine_fixed_point(start, 0));
     if (!coarse.converged) {
         res.message = coarse.message;
         return;
     }
-    ro.min_length = static_cast<slong>(std::ceil(1.2 * static_cast<double>(coarse.n)));
-    newton::FixedPoint fine = newton::approx_refine(coarse, request.digits, ro);
+    const slong n_fine = static_cast<slong>(std::ceil(1.2 * static_cast<double>(coarse.n)));
+    newton::FixedPoint fine = stages.run("fixed-point@1.2N", refine_fixed_point(coarse, n_fine));
     if (!fine.converged) {
         res.message = fine.message;
         return;
@@ -208,16 +350,23 @@ void solve_taylor(const Request& request, Result& res)
     // The eigenpair at the longer truncation starts from the one at the shorter truncation, so
     // that it needs only the steps that the extra coefficients call for.
     spectrum::Eigenpair last_coarse;
-    auto refine = [&](const spectrum::ApproxEigen& seed, double digits, bool at_fine) {
-        spectrum::EigenOptions o;
-        o.progress = request.progress;
+    auto refine = [&](const spectrum::ApproxEigen& seed, double digits, bool at_fine, const std::string& label) {
+        auto run = [&](const StageHooks& h) {
+            spectrum::EigenOptions o;
+            o.progress = h.progress;
+            o.on_step = h.on_step;
+            o.resume = h.resume;
+            if (!at_fine)
+                return spectrum::approx_refine_eigenpair(coarse, seed, digits, o);
+            o.min_length = fine.n;
+            o.start = &last_coarse;
+            return spectrum::approx_refine_eigenpair(fine, seed, digits, o);
+        };
         if (!at_fine) {
-            last_coarse = spectrum::approx_refine_eigenpair(coarse, seed, digits, o);
+            last_coarse = stages.run(label + "@N", run);
             return last_coarse;
         }
-        o.min_length = fine.n;
-        o.start = &last_coarse;
-        return spectrum::approx_refine_eigenpair(fine, seed, digits, o);
+        return stages.run(label + "@1.2N", run);
     };
     finish_spectrum(res, request, seeds, refine);
 }
@@ -250,7 +399,7 @@ void solve_chebyshev(const Request& request, Result& res)
     res.log10_residual = fine.log10_residual;
     res.alpha = make_estimate(fine.a, coarse.a, request.digits);
     std::vector<spectrum::ApproxEigen> seeds = spectrum::approx_collocation_eigenvalues(fine, 80);
-    auto refine = [&](const spectrum::ApproxEigen& seed, double digits, bool at_fine) {
+    auto refine = [&](const spectrum::ApproxEigen& seed, double digits, bool at_fine, const std::string&) {
         return spectrum::approx_collocation_eigenpair(at_fine ? fine : coarse, seed, digits);
     };
     finish_spectrum(res, request, seeds, refine);
@@ -272,10 +421,16 @@ Result solve_constants(const Request& request)
     Result res;
     res.problem.order = request.order;
     res.basis = choose_basis(request);
-    if (res.basis == Basis::taylor)
+    if (request.resume)
+        check_resume(request, *request.resume);
+    if (res.basis == Basis::taylor) {
         solve_taylor(request, res);
-    else
+    } else {
+        if (!request.checkpoint_path.empty() || request.resume)
+            throw std::invalid_argument("checkpoints are supported for the Taylor basis only (z <= 6, or "
+                                        "--basis taylor)");
         solve_chebyshev(request, res);
+    }
     res.seconds = std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count();
     return res;
 }

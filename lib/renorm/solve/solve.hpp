@@ -4,10 +4,12 @@
 /// the number of digits shown stable by two truncations (N and about 1.2 N). No guarantee: these
 /// are estimates; certify/ proves enclosures.
 
+#include <renorm/io/checkpoint.hpp>
 #include <renorm/newton/fixed_point.hpp>
 #include <renorm/spectrum/spectrum.hpp>
 
 #include <complex>
+#include <functional>
 #include <string>
 #include <vector>
 
@@ -31,7 +33,27 @@ struct Request {
     slong digits = 100;      ///< digits wanted
     slong eigenvalues = 4;   ///< how many eigenvalues after delta to report
     newton::ProgressFn progress;
+    /// Taylor basis only. Where to save a checkpoint (io/checkpoint.hpp) after every Newton step
+    /// of every stage and after every finished stage; empty: none is written.
+    std::string checkpoint_path;
+    /// Taylor basis only. A checkpoint to continue from: finished stages are reused, the running
+    /// one continues from its saved state, so the result is bit for bit that of the uninterrupted
+    /// run. It must match the request (check_resume) and outlive the call.
+    const io::Checkpoint* resume = nullptr;
+    /// Called with every checkpoint taken (after it is written, when checkpoint_path is set).
+    /// An exception thrown here ends the run: tests interrupt runs this way.
+    std::function<void(const io::Checkpoint&)> on_checkpoint;
 };
+
+/// The names of the stages a Taylor-basis run goes through, in order, as a checkpoint records
+/// them: "fixed-point@N", "fixed-point@1.2N", "delta@N", "delta@1.2N", then "eigenvalue-K@N" and
+/// "eigenvalue-K@1.2N" for K = 1 .. request.eigenvalues (the real ones are refined).
+std::vector<std::string> stage_names(const Request& request);
+
+/// Throws std::invalid_argument naming the first difference when `checkpoint` was written for
+/// another request (order text, digits, eigenvalues, basis used), or names a stage this request
+/// does not run, or holds a running state of the wrong shape.
+void check_resume(const Request& request, const io::Checkpoint& checkpoint);
 
 /// An estimated constant: the value at the working precision and the digits both truncations
 /// agree on.
@@ -79,8 +101,9 @@ struct Cost {
 Cost estimate_cost(const Request& request);
 
 /// Checks a request and throws std::invalid_argument naming the problem and the accepted range:
-/// z not a finite number > 1, digits < 1, eigenvalues < 0 or > 50, or a run whose memory estimate
-/// exceeds `memory_limit_bytes`.
+/// z not a finite number > 1, digits < 1, eigenvalues < 0 or > 50, a checkpoint or resume asked
+/// of the Chebyshev basis (not supported), or a run whose memory estimate exceeds
+/// `memory_limit_bytes`.
 void validate(const Request& request, double memory_limit_bytes);
 
 /// The basis a request will use: its own choice, or for Basis::automatic Taylor when z <= 6
@@ -89,7 +112,10 @@ void validate(const Request& request, double memory_limit_bytes);
 Basis choose_basis(const Request& request);
 
 /// Runs the whole estimate. No guarantee. Returns converged == false with a message when Newton or
-/// the eigenvalue refinement fails; no number is reported as stable then.
+/// the eigenvalue refinement fails; no number is reported as stable then. Throws
+/// std::invalid_argument when request.resume does not match the request (check_resume) or a
+/// checkpoint is asked of the Chebyshev basis, std::runtime_error when a checkpoint cannot be
+/// written.
 Result solve_constants(const Request& request);
 
 /// Significant digits on which x and y agree: floor(-log10(|x - y| / |x|)). No guarantee.
