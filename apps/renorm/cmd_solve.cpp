@@ -3,6 +3,7 @@
 #include "progress.hpp"
 
 #include <renorm/io/atomic_file.hpp>
+#include <renorm/io/checkpoint.hpp>
 #include <renorm/solve/solve.hpp>
 #include <renorm/version.hpp>
 
@@ -27,6 +28,15 @@ struct SolveArgs {
     bool quiet = false;
     std::string coefficients;
     std::string basis = "auto";
+    std::string checkpoint;
+    std::string resume;
+    std::string progress = "auto";
+    // Set at registration: whether an option was given (a resumed run takes the others from the
+    // checkpoint).
+    CLI::Option* order_opt = nullptr;
+    CLI::Option* digits_opt = nullptr;
+    CLI::Option* eigenvalues_opt = nullptr;
+    CLI::Option* basis_opt = nullptr;
 };
 
 std::string eigen_text(const solve::EigenvalueReport& e)
@@ -77,8 +87,24 @@ std::string coefficients_json(const solve::Result& r, slong digits)
     return j.dump(1) + "\n";
 }
 
-int run_solve(const SolveArgs& a)
+int run_solve(SolveArgs a)
 {
+    // --resume: read the checkpoint first; the request options not given take its values, the
+    // ones given must match it (check_resume names the first difference).
+    io::Checkpoint resumed;
+    if (!a.resume.empty()) {
+        resumed = io::read_checkpoint(a.resume);
+        if (a.order_opt->count() == 0)
+            a.order = resumed.order;
+        if (a.digits_opt->count() == 0)
+            a.digits = resumed.digits;
+        if (a.eigenvalues_opt->count() == 0)
+            a.eigenvalues = resumed.eigenvalues;
+        if (a.basis_opt->count() == 0)
+            a.basis = resumed.basis;
+        if (a.checkpoint.empty())
+            a.checkpoint = a.resume;
+    }
     solve::Request req;
     req.order = a.order;
     req.digits = a.digits;
@@ -86,10 +112,26 @@ int run_solve(const SolveArgs& a)
     req.basis = a.basis == "taylor"      ? solve::Basis::taylor
                 : a.basis == "chebyshev" ? solve::Basis::chebyshev
                                          : solve::Basis::automatic;
+    req.checkpoint_path = a.checkpoint;
+    if (!a.resume.empty())
+        req.resume = &resumed;
+    // Everything that can be refused is refused before the run starts: the request and its
+    // memory estimate (also on resume), the checkpoint's match, the output paths.
     solve::validate(req, available_memory_bytes());
+    if (req.resume) {
+        solve::check_resume(req, resumed);
+        if (resumed.commit != renorm::git_commit)
+            std::cerr << "renorm solve: note: the checkpoint was written by commit " << resumed.commit
+                      << ", this is " << renorm::git_commit << "; the result may differ in the last digits\n";
+    }
     if (!a.coefficients.empty())
         io::check_writable(a.coefficients);
-    ProgressLine progress(a.quiet);
+    if (!a.checkpoint.empty())
+        io::check_writable(a.checkpoint);
+    ProgressLine progress(a.quiet ? ProgressMode::none
+                          : a.progress == "lines" ? ProgressMode::lines
+                          : a.progress == "none"  ? ProgressMode::none
+                                                  : ProgressMode::automatic);
     req.progress = progress.callback();
     solve::Result r = solve::solve_constants(req);
     progress.finish();
@@ -148,18 +190,29 @@ void register_solve(CLI::App& app, int* code)
     auto args = std::make_shared<SolveArgs>();
     CLI::App* sub = app.add_subcommand(
         "solve", "Estimate alpha, delta and the next eigenvalues for a critical point of order z");
-    sub->add_option("-z,--order", args->order, "order z > 1 of the critical point (any real number)")
+    args->order_opt = sub->add_option("-z,--order", args->order, "order z > 1 of the critical point (any real number)")
         ->capture_default_str();
-    sub->add_option("-d,--digits", args->digits, "significant digits wanted")->capture_default_str();
-    sub->add_option("-k,--eigenvalues", args->eigenvalues, "how many eigenvalues after delta to report (0-50)")
+    args->digits_opt = sub->add_option("-d,--digits", args->digits, "significant digits wanted")->capture_default_str();
+    args->eigenvalues_opt = sub->add_option("-k,--eigenvalues", args->eigenvalues, "how many eigenvalues after delta to report (0-50)")
         ->capture_default_str();
-    sub->add_option("--basis", args->basis,
+    args->basis_opt = sub->add_option("--basis", args->basis,
                     "taylor (disc about y = 1/2; fast at thousands of digits), chebyshev (collocation on "
                     "[0, 1]; any z), or auto (taylor for z <= 6)")
         ->check(CLI::IsMember({"auto", "taylor", "chebyshev"}))
         ->capture_default_str();
     sub->add_flag("--json", args->json, "print one JSON object on stdout");
-    sub->add_flag("-q,--quiet", args->quiet, "no progress line on stderr");
+    sub->add_flag("-q,--quiet", args->quiet, "no progress on stderr (the same as --progress none)");
+    sub->add_option("--progress", args->progress,
+                    "auto (one line rewritten in place when stderr is a terminal, nothing otherwise), "
+                    "lines (one plain line per Newton step, also into a file or pipe), or none")
+        ->check(CLI::IsMember({"auto", "lines", "none"}))
+        ->capture_default_str();
+    sub->add_option("--checkpoint", args->checkpoint,
+                    "save the run's state to FILE after every Newton step and every finished stage "
+                    "(Taylor basis only)");
+    sub->add_option("--resume", args->resume,
+                    "continue the run saved in FILE (and keep saving to it, unless --checkpoint names "
+                    "another file); the result is identical to an uninterrupted run's");
     sub->add_option("--coefficients", args->coefficients,
                     "also write the coefficients of G to FILE (JSON, decimal strings)");
     sub->footer("Solves the doubling equation G(y) = -a G(G(y a^-z)^z), G(0) = 1, a = -1/G(1), with\n"
@@ -171,7 +224,16 @@ void register_solve(CLI::App& app, int* code)
                 "Examples:\n"
                 "  renorm solve                          # z = 2, 100 digits\n"
                 "  renorm solve --order 4 --digits 50 --json\n"
-                "  renorm solve -z 3.5 -d 40 --coefficients g35.json");
+                "  renorm solve -z 3.5 -d 40 --coefficients g35.json\n\n"
+                "Long runs: --checkpoint FILE saves the state after every Newton step (written to a\n"
+                "temporary file, then renamed over FILE, so FILE is always complete). If the run is\n"
+                "killed, --resume FILE continues it and prints exactly what the uninterrupted run\n"
+                "would have printed. Options not given with --resume are taken from FILE; options\n"
+                "given must match it. Checkpoints need the Taylor basis (z <= 6): with the Chebyshev\n"
+                "basis --checkpoint and --resume are refused. The memory estimate is checked before\n"
+                "the run starts, also on resume.\n"
+                "  nohup renorm solve -d 10000 --checkpoint d10k.ckpt --progress lines 2> d10k.log &\n"
+                "  renorm solve --resume d10k.ckpt --progress lines 2>> d10k.log");
     sub->callback([args, code] { *code = run_solve(*args); });
 }
 

@@ -1,9 +1,10 @@
 #pragma once
-// A one-line progress display on stderr, shown only when stderr is a terminal.
+// Progress on stderr: one line rewritten in place on a terminal, or plain lines for logs.
 #include <renorm/newton/fixed_point.hpp>
 
 #include <chrono>
 #include <cstdio>
+#include <string>
 #include <unistd.h>
 
 namespace renorm::app {
@@ -18,9 +19,39 @@ inline double available_memory_bytes()
     return 0.8 * static_cast<double>(pages) * static_cast<double>(size);
 }
 
+/// "<1 s left", "~12 s left", "~7 min left", "~2.5 h left"; empty when the estimate is unknown (negative).
+inline std::string time_left_text(double seconds)
+{
+    if (!(seconds >= 0))
+        return "";
+    char buf[48];
+    if (seconds < 1)
+        std::snprintf(buf, sizeof buf, "<1 s left");
+    else if (seconds < 120)
+        std::snprintf(buf, sizeof buf, "~%.0f s left", seconds);
+    else if (seconds < 7200)
+        std::snprintf(buf, sizeof buf, "~%.0f min left", seconds / 60);
+    else
+        std::snprintf(buf, sizeof buf, "~%.1f h left", seconds / 3600);
+    return buf;
+}
+
+/// How progress is shown.
+enum class ProgressMode {
+    automatic, ///< one line rewritten in place when stderr is a terminal, nothing otherwise
+    lines,     ///< one plain line per step, terminal or not (for logs of long runs)
+    none,
+};
+
 class ProgressLine {
 public:
-    explicit ProgressLine(bool quiet) : m_on(!quiet && ::isatty(STDERR_FILENO)) {}
+    explicit ProgressLine(ProgressMode mode)
+        : m_on(mode == ProgressMode::lines || (mode == ProgressMode::automatic && ::isatty(STDERR_FILENO))),
+          m_lines(mode == ProgressMode::lines)
+    {
+    }
+    explicit ProgressLine(bool quiet) : ProgressLine(quiet ? ProgressMode::none : ProgressMode::automatic) {}
+
     newton::ProgressFn callback()
     {
         if (!m_on)
@@ -28,11 +59,13 @@ public:
         return [this](const newton::Progress& p) {
             const double s =
                 std::chrono::duration<double>(std::chrono::steady_clock::now() - m_start).count();
-            std::fprintf(stderr, "\r\033[K[%6.1fs] z=%s %s step %ld: N=%ld, %ld bits, residual 1e%.0f",
-                         s, p.order.c_str(), p.stage.c_str(), static_cast<long>(p.step),
-                         static_cast<long>(p.n), static_cast<long>(p.prec), p.log10_residual);
+            const std::string left = time_left_text(p.seconds_left);
+            std::fprintf(stderr, "%s[%6.1fs] z=%s %s step %ld: N=%ld, %ld bits, residual 1e%.0f%s%s%s",
+                         m_lines ? "" : "\r\033[K", s, p.order.c_str(), p.stage.c_str(),
+                         static_cast<long>(p.step), static_cast<long>(p.n), static_cast<long>(p.prec),
+                         p.log10_residual, left.empty() ? "" : ", ", left.c_str(), m_lines ? "\n" : "");
             std::fflush(stderr);
-            m_dirty = true;
+            m_dirty = !m_lines;
         };
     }
     void finish()
@@ -45,6 +78,7 @@ public:
 
 private:
     bool m_on;
+    bool m_lines;
     bool m_dirty = false;
     std::chrono::steady_clock::time_point m_start = std::chrono::steady_clock::now();
 };
