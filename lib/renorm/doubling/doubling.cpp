@@ -89,7 +89,8 @@ Linearization::Linearization(const BallPoly& g, const Problem& problem, slong n,
     if (prec < 2 || n < 1)
         throw std::invalid_argument("Linearization: need prec >= 2 and n >= 1");
     const Disc& d = problem.disc;
-    InnerMaps im = inner_maps(g, problem, n, prec);
+    // One more coefficient than kept: the derivative of G(v) below needs it.
+    InnerMaps im = inner_maps(g, problem, n + 1, prec);
     if (!im.ok)
         throw std::invalid_argument("Linearization: T is undefined at this G (G(1) >= 0 or G(u) <= 0)");
     Ball z = problem.order_ball(prec);
@@ -97,26 +98,46 @@ Linearization::Linearization(const BallPoly& g, const Problem& problem, slong n,
     m_a = im.a;
     m_b0 = im.b0;
     m_b1 = im.b1;
-    m_sigma_v = im.sigma_v;
+    m_sigma_v = truncated(im.sigma_v, n);
     m_s1 = d.to_s(one, prec);
     m_s0 = d.to_s(zero, prec);
 
     // G' in y: dG/dy = (1/r) dG~/ds.
     BallPoly dg = derivative(g, prec);
     arb_poly_scalar_div(dg.get(), dg.get(), r.get(), prec);
-    BallPoly dg_v = compose(dg, m_sigma_v, n, prec);                 // G'(v)
     BallPoly dg_u = compose_affine(dg, m_b0, m_b1, n, prec);         // G'(u)
-    BallPoly g_v = compose(g, m_sigma_v, n, prec);                   // G(v)
-    Ball zm1;
-    arb_sub_ui(zm1.get(), z.get(), 1, prec);
-    BallPoly w_zm1 = pow_series(im.w, zm1, n, prec);                 // G(u)^(z-1)
+    BallPoly g_v1 = compose(g, im.sigma_v, n + 1, prec);             // G(v), n + 1 terms
+    BallPoly g_v = truncated(g_v1, n);
 
-    // m = -a z G'(v) G(u)^(z-1)
-    m_mult = mullow(dg_v, w_zm1, n, prec);
-    Ball factor;
-    arb_mul(factor.get(), m_a.get(), z.get(), prec);
-    arb_neg(factor.get(), factor.get());
-    arb_poly_scalar_mul(m_mult.get(), m_mult.get(), factor.get(), prec);
+    // m = -a z G'(v) G(u)^(z-1). Since d/ds G(v(s)) = G'(v) z G(u)^(z-1) G'(u) du/ds and
+    // du/ds = a^-z r = b1 r, this is m = -a (d/ds G(v)) / (b1 r G'(u)): one composition
+    // (G(v), which T needs anyway) instead of two (G(v) and G'(v)), and no power G(u)^(z-1).
+    // The identity holds coefficient by coefficient for the truncated series below degree n
+    // because G(v) is kept to n + 1 terms. G'(u) does not vanish where T is defined (G is
+    // decreasing near 0); when its constant term is not certainly nonzero, the direct form is
+    // used instead.
+    Ball du0 = dg_u.coeff(0);
+    if (arb_is_nonzero(du0.get())) {
+        BallPoly dgv = derivative(g_v1, prec);
+        BallPoly den;
+        Ball b1r;
+        arb_mul(b1r.get(), m_b1.get(), r.get(), prec);
+        arb_poly_scalar_mul(den.get(), dg_u.get(), b1r.get(), prec);
+        arb_poly_div_series(m_mult.get(), dgv.get(), den.get(), n, prec);
+        Ball mina;
+        arb_neg(mina.get(), m_a.get());
+        arb_poly_scalar_mul(m_mult.get(), m_mult.get(), mina.get(), prec);
+    } else {
+        BallPoly dg_v = compose(dg, m_sigma_v, n, prec);             // G'(v)
+        Ball zm1;
+        arb_sub_ui(zm1.get(), z.get(), 1, prec);
+        BallPoly w_zm1 = pow_series(truncated(im.w, n), zm1, n, prec); // G(u)^(z-1)
+        m_mult = mullow(dg_v, w_zm1, n, prec);
+        Ball factor;
+        arb_mul(factor.get(), m_a.get(), z.get(), prec);
+        arb_neg(factor.get(), factor.get());
+        arb_poly_scalar_mul(m_mult.get(), m_mult.get(), factor.get(), prec);
+    }
 
     // u(s) = a^-z (c + r s)
     BallPoly u;

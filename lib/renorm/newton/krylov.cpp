@@ -279,7 +279,9 @@ KrylovResult approx_newton_krylov(KrylovProblem& problem, KrylovState state, dou
     for (; state.step < options.max_newton;) {
         const auto t_start = std::chrono::steady_clock::now();
         const double e = state.digits;
-        const double t = std::min(d_work, std::max(2.0 * e - 2.0, e + 4.0));
+        double t = std::min(d_work, std::max(2.0 * e - 2.0, e + 4.0));
+        if (t >= 0.9 * d_work) // the last steps share one truncation and precision (and so the
+            t = d_work;        // eigen problem's DT, built once per truncation and precision)
         slong n = std::max(state.n, std::min(problem.length_for(t), state.n_final));
         if (t >= d_work)
             n = std::max(n, state.n_final);
