@@ -64,6 +64,11 @@ BallPoly compose_affine(const BallPoly& f, const Ball& b0, const Ball& b1, slong
 
 BallPoly compose(const BallPoly& f, const BallPoly& h, slong n, slong prec)
 {
+    return compose_arb(f, h, n, prec);
+}
+
+BallPoly compose_arb(const BallPoly& f, const BallPoly& h, slong n, slong prec)
+{
     check_prec(prec);
     check_n(n);
     // f(h) = f(h0 + (h - h0)): shift f by h0, then compose with a series that has no

@@ -41,6 +41,12 @@ BallPoly compose_affine(const BallPoly& f, const Ball& b0, const Ball& b1, slong
 /// bits; callers working near the edge of the disc add guard bits.
 BallPoly compose(const BallPoly& f, const BallPoly& h, slong n, slong prec);
 
+/// The compose() variant that passes h - h(0) to Arb's arb_poly_compose_series (Brent–Kung for
+/// long inputs) after a Taylor shift of f by h(0), every step at `prec`. Encloses the
+/// coefficients of degree < n of f(h(s)). Aliasing: f and h may be the same polynomial.
+/// Precision: as compose().
+BallPoly compose_arb(const BallPoly& f, const BallPoly& h, slong n, slong prec);
+
 /// Coefficients of degree < n of w^p = exp(p log w) as a power series about s = 0, with the
 /// principal branch. Requires w(0) > 0 (throws std::invalid_argument when w(0) is not
 /// certainly positive). Encloses them.

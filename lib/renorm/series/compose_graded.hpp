@@ -1,0 +1,28 @@
+#pragma once
+/// \file
+/// Composition of truncated series by baby steps and giant steps (Paterson–Stockmeyer /
+/// Brent–Kung) in which every block works only to the length and the precision its
+/// contribution to the result needs. See DEVELOPERS.md, "Why compositions are computed as they
+/// are".
+
+#include <renorm/series/series.hpp>
+
+namespace renorm::series {
+
+/// Coefficients of degree < n of f(h(s)), for any constant term h(0).
+/// Encloses them: all arithmetic is Arb ball arithmetic, so the result encloses the truncated
+/// composition whatever precisions the blocks use; only the radii depend on that choice.
+/// Returns: a polynomial of length <= n (n = 0 gives the zero polynomial).
+/// Aliasing: f and h may be the same polynomial (arguments are read only).
+/// Precision: f is first shifted by h(0) at `prec` (as in compose()). With w = h - h(0) and
+/// m ~ sqrt(n), f(h) = sum_j S_j(w) w^(jm), S_j = sum_(i<m) f_(jm+i) w^i. Block j is needed only to
+/// length n - jm, and its size is bounded by c_j = max_i |f_(jm+i)| ||w^i|| ||w^m / s^m||^j
+/// (truncated l1 norms). Block j and the Horner steps above it work at
+/// prec - log2(max_j' c_j' / c_j) + guard bits (never above `prec`, never below 64): every
+/// term's absolute rounding error stays at the level `prec` gives the largest term, which is
+/// the level of the radius arb_poly_compose_series leaves at `prec`. This is an exception to
+/// "never below prec" of STYLE.md §3, by design. Faster than compose_arb() when the
+/// coefficients of f(h(0) + t) decay geometrically; not slower by much when they do not.
+BallPoly compose_graded(const BallPoly& f, const BallPoly& h, slong n, slong prec);
+
+} // namespace renorm::series
