@@ -5,7 +5,9 @@
 // prec = 3.33 D + 100 bits for D decimal digits (the sizes of the solver's final compositions).
 // A second row per D ("inner 0.87") keeps f but takes an inner map like the solver's v on its disc:
 // h = 0.4 + 0.6 s + sum_(k>=2) h_k s^k with |h_k| <= 0.25 * 2^(-4(k-2)), so ||h - h(0)|| ~ 0.87
-// (0.90 at the fixed point for z = 2) and the blocks shrink only as fast as f decays.
+// (0.90 at the fixed point for z = 2) and the blocks shrink only as fast as f decays. A third row
+// ("flat") takes f without decay (|f_k| <= 1, as a direction the derivative DT is applied to) with
+// the same inner map: nothing can be graded there, so it shows the cost of trying.
 // Prints a Markdown table. Reproduces the numbers in DEVELOPERS.md ("Why compositions are computed
 // as they are"). Usage: renorm_bench_compose [D ...]   (default 300 1000 2000)
 #include <renorm/series/compose_graded.hpp>
@@ -84,27 +86,31 @@ int main(int argc, char **argv)
         ds = {300, 1000, 2000};
     flint_rand_t st;
     flint_randinit(st);
-    std::printf("| D | inner | n | prec | Arb compose (s) | graded (s) | ratio | log2 l1 rad Arb | "
-                "log2 l1 rad "
-                "graded | worst coeff rad ratio (log2) | overlap |\n"
-                "|---:|---|---:|---:|---:|---:|---:|---:|---:|---:|:---:|\n");
+    std::printf(
+        "| D | f | inner | n | prec | Arb compose (s) | graded (s) | ratio | log2 l1 rad Arb | "
+        "log2 l1 rad graded | worst coeff rad ratio (log2) | overlap |\n"
+        "|---:|---|---|---:|---:|---:|---:|---:|---:|---:|---:|:---:|\n");
     for (slong d : ds) {
         const slong n = (83 * d) / 100;
         const slong prec = (333 * d) / 100 + 100;
         BallPoly f = random_decaying(st, n, 4, 0, prec);
-        for (int inner = 0; inner < 2; ++inner) {
+        BallPoly flat = random_decaying(st, n, 0, 0, prec);
+        for (int inner = 0; inner < 3; ++inner) {
             BallPoly h =
                 inner == 0 ? random_decaying(st, n, 4, 1, prec) : solver_like_inner(st, n, prec);
+            const BallPoly& outer = inner == 2 ? flat : f;
             BallPoly a, g;
-            const double ta = seconds([&] { a = series::compose_arb(f, h, n, prec); });
-            const double tg = seconds([&] { g = series::compose_graded(f, h, n, prec); });
+            const double ta = seconds([&] { a = series::compose_arb(outer, h, n, prec); });
+            const double tg = seconds([&] { g = series::compose_graded(outer, h, n, prec); });
             bool ok = a.length() == g.length();
             for (slong k = 0; ok && k < a.length(); ++k)
                 ok = arb_overlaps(a.get()->coeffs + k, g.get()->coeffs + k) != 0;
-            std::printf("| %ld | %s | %ld | %ld | %.3f | %.3f | %.2f | %.1f | %.1f | %.1f | %s |\n",
-                        static_cast<long>(d), inner == 0 ? "2^-4k-1" : "0.87", static_cast<long>(n),
-                        static_cast<long>(prec), ta, tg, ta / tg, log2_l1_radius(a),
-                        log2_l1_radius(g), log2_worst_radius_ratio(a, g), ok ? "yes" : "NO");
+            std::printf(
+                "| %ld | %s | %s | %ld | %ld | %.3f | %.3f | %.2f | %.1f | %.1f | %.1f | %s |\n",
+                static_cast<long>(d), inner == 2 ? "flat" : "2^-4k",
+                inner == 0 ? "2^-4k-1" : "0.87", static_cast<long>(n), static_cast<long>(prec), ta,
+                tg, ta / tg, log2_l1_radius(a), log2_l1_radius(g), log2_worst_radius_ratio(a, g),
+                ok ? "yes" : "NO");
             std::fflush(stdout);
         }
     }
