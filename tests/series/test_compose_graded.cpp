@@ -164,6 +164,30 @@ TEST(ComposeGraded, LongDecayingCaseMatchesArbAndIsAsTight)
     flint_randclear(st);
 }
 
+TEST(ComposeGraded, AsTightAsArbInTheL1NormWhenTheInnerMapExpands)
+{
+    // ||h - h0|| = 2.05 > 1 (as v at z >= 8 on the default disc): the bounds B_j grow with j, the
+    // high blocks are the large ones, and every Horner value below them must keep their precision
+    // (an underestimate of B_j for large j makes this fail: checked by mutation). The l1 norm of
+    // the radii must stay within 2^10 of that of Arb's composition at the same precision
+    // (source: compose_arb at prec), for flat f and for f decaying one bit a term.
+    flint_rand_t st;
+    flint_randinit(st);
+    flint_randseed(st, test_seed(), 17);
+    const slong n = 150, prec = 400;
+    for (slong decay : {0, 1}) {
+        BallPoly f = random_poly(st, n, decay, 1.0, prec);
+        BallPoly h = inner_map(st, n, 0.2, 1.8, prec);
+        expect_matches_truth(f, h, n, prec, "expanding inner map");
+        BallPoly got = compose_graded(f, h, n, prec);
+        BallPoly arb = compose_arb(f, h, n, prec);
+        EXPECT_LT(log2_l1_radius(got), log2_l1_radius(arb) + 10)
+            << "decay " << decay << ": graded " << log2_l1_radius(got) << " vs Arb "
+            << log2_l1_radius(arb);
+    }
+    flint_randclear(st);
+}
+
 TEST(ComposeGraded, NonDecayingOuterSeriesIsStillEnclosed)
 {
     // No decay: every block matters; with ||h - h0|| = 1.55 > 1 the high blocks dominate the
