@@ -1,3 +1,4 @@
+#include <renorm/series/compose_graded.hpp>
 #include <renorm/series/series.hpp>
 
 #include <gtest/gtest.h>
@@ -71,6 +72,63 @@ TEST(Series, ComposeAffineAgreesWithGeneralCompose)
     BallPoly y = compose(f, lin, 30, 300);
     for (slong k = 0; k < 30; ++k)
         EXPECT_TRUE(overlaps(x.coeff(k), y.coeff(k))) << "k = " << k;
+    flint_randclear(st);
+}
+
+TEST(Series, ComposeVariantsOverlapAndComposeDispatches)
+{
+    // compose_arb (Arb's arb_poly_compose_series) and compose_graded must overlap coefficient by
+    // coefficient, for decaying and flat f, with h(0) != 0; compose must be exactly the variant
+    // its cutoff picks.
+    flint_rand_t st;
+    flint_randinit(st);
+    flint_randseed(st, test_seed(), 12);
+    for (slong n : {3, 15, 16, 17, 60, 200}) {
+        for (double decay : {3.0, 0.0}) {
+            BallPoly f = random_poly(st, n, decay, 400);
+            BallPoly h = random_poly(st, n, 2.0, 400);
+            h.set_coeff(0, Ball(0.35));
+            BallPoly a = compose_arb(f, h, n, 400);
+            BallPoly g = compose_graded(f, h, n, 400);
+            ASSERT_EQ(a.length(), g.length()) << "n = " << n;
+            for (slong k = 0; k < n; ++k)
+                EXPECT_TRUE(overlaps(a.coeff(k), g.coeff(k)))
+                    << "n = " << n << ", decay " << decay << ", k = " << k << ": "
+                    << enclosure_string(a.coeff(k), 30) << " vs " << enclosure_string(g.coeff(k), 30);
+            BallPoly c = compose(f, h, n, 400);
+            const BallPoly& picked = n >= compose_graded_cutoff ? g : a;
+            ASSERT_EQ(c.length(), picked.length());
+            for (slong k = 0; k < c.length(); ++k)
+                EXPECT_TRUE(arb_equal(c.get()->coeffs + k, picked.get()->coeffs + k)) << n << " " << k;
+        }
+    }
+    flint_randclear(st);
+}
+
+TEST(Series, ComposeWithRandomCutoffEqualsEvaluation)
+{
+    // The cutoff set at random (STYLE.md §6): compose must still give f(h) exactly as a
+    // polynomial (n > deg f * deg h), checked at a point against Arb's arb_poly_evaluate of f at
+    // h(s), both at 4x the precision.
+    flint_rand_t st;
+    flint_randinit(st);
+    flint_randseed(st, test_seed(), 13);
+    const slong saved = compose_graded_cutoff;
+    compose_graded_cutoff = 1 + static_cast<slong>(n_randint(st, 64));
+    std::cerr << "compose_graded_cutoff=" << compose_graded_cutoff << "\n";
+    for (int it = 0; it < 5 * multiplier(); ++it) {
+        BallPoly f = random_poly(st, 10, 1.0, 200);
+        BallPoly h = random_poly(st, 5, 1.5, 200);
+        const slong n = 10 * 5;
+        BallPoly fh = compose(f, h, n, 200);
+        Ball s(-0.61), hs, direct;
+        arb_poly_evaluate(hs.get(), h.get(), s.get(), 800);
+        arb_poly_evaluate(direct.get(), f.get(), hs.get(), 800);
+        Ball via = evaluate(fh, s, 200);
+        EXPECT_TRUE(overlaps(direct, via)) << enclosure_string(direct, 40) << " vs " << enclosure_string(via, 40);
+        EXPECT_LT(via.radius_upper(), 1e-50);
+    }
+    compose_graded_cutoff = saved;
     flint_randclear(st);
 }
 

@@ -1,5 +1,7 @@
 #include <renorm/series/series.hpp>
 
+#include <renorm/series/compose_graded.hpp>
+
 #include <cmath>
 #include <stdexcept>
 #include <vector>
@@ -62,7 +64,15 @@ BallPoly compose_affine(const BallPoly& f, const Ball& b0, const Ball& b1, slong
     return shifted;
 }
 
+slong compose_graded_cutoff = 16;
+
 BallPoly compose(const BallPoly& f, const BallPoly& h, slong n, slong prec)
+{
+    return n >= compose_graded_cutoff ? compose_graded(f, h, n, prec)
+                                      : compose_arb(f, h, n, prec);
+}
+
+BallPoly compose_arb(const BallPoly& f, const BallPoly& h, slong n, slong prec)
 {
     check_prec(prec);
     check_n(n);
