@@ -312,7 +312,7 @@ KrylovResult approx_newton_krylov(KrylovProblem& problem, KrylovState state, dou
             }
             options.progress({options.stage, state.step, n, prec, r, options.order, left});
         }
-        if (now >= d_work && n >= state.n_final) {
+        if (now >= d_work && n >= state.n_final && state.step >= options.min_steps) {
             if (problem.long_enough(x, n, d_work)) {
                 state.x = std::move(x);
                 state.n = n;
@@ -336,11 +336,16 @@ KrylovResult approx_newton_krylov(KrylovProblem& problem, KrylovState state, dou
         }
         prev = now;
 
-        // The preconditioner: rebuilt at this iterate when it can be made much better.
-        const double q_want = std::min(now, q_cap);
-        if (!pc || (q_want >= 1.5 * state.pc_digits && state.pc_digits < q_cap)) {
-            state.pc_size = std::clamp<slong>(static_cast<slong>(std::ceil(3.0 * q_want)) + 30, 8,
-                                              std::min(options.precond_max, n));
+        // The preconditioner: built at this iterate when none exists or when a much better one
+        // (more digits, or a larger block now that the truncation has grown) is worth it. It
+        // needs no more digits than this step's correction.
+        const double k_rel = std::max(3.0, t - now + 3.0);
+        const double q_want = std::min({now, q_cap, k_rel + 10.0});
+        const slong m_want = std::clamp<slong>(static_cast<slong>(std::ceil(3.0 * q_want)) + 30, 8,
+                                               std::min(options.precond_max, n));
+        if (!pc || (q_want >= 1.5 * state.pc_digits && state.pc_digits < q_cap) ||
+            (m_want >= 3 * state.pc_size / 2 && q_want >= state.pc_digits)) {
+            state.pc_size = m_want;
             state.pc_prec = bits_for(q_want + 10);
             // Kept at the preconditioner's own precision: all it is used at, and a small
             // checkpoint (a resumed run rebuilds the same LU from it).
@@ -355,7 +360,6 @@ KrylovResult approx_newton_krylov(KrylovProblem& problem, KrylovState state, dou
         // 10^-t (beyond them the tail rule is accurate enough). Modes the truncation has just
         // added carry residuals of the size of G's coefficients there, so the last such index
         // is read off the residual, not predicted.
-        const double k_rel = std::max(3.0, t - now + 3.0);
         slong n_in = std::min(pc->size(), n);
         for (slong k = n - 1; k >= n_in; --k)
             if (detail::log10_upper(Ball(f[k])) > -(t + 2.0)) {

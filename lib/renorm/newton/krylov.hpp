@@ -78,6 +78,9 @@ struct KrylovOptions {
     slong precond_max = 400;    ///< largest preconditioner block m
     double precond_digits = 150; ///< precision cap of the preconditioner, digits
     slong min_length = 0;      ///< lower bound of the final truncation
+    /// Newton corrections to make even when the first residual already meets the target (1 at a
+    /// second truncation: its fixed point is then solved for, not the first one's padded).
+    slong min_steps = 0;
     /// The linear solve of each Newton step: GMRES (the fast path), or for comparison the dense
     /// LU of the whole n_in x n_in Jacobian at the correction's precision (the dense path:
     /// same schedule, N^3 work).

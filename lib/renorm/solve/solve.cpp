@@ -321,6 +321,7 @@ void solve_taylor(const Request& request, Result& res)
             ro.resume = h.resume;
             ro.guard_digits = guard_digits;
             ro.min_length = min_length;
+            ro.min_steps = min_length > 0 ? 1 : 0; // the second truncation is solved, not padded
             return newton::approx_refine(from, request.digits, ro);
         };
     };
@@ -359,6 +360,7 @@ void solve_taylor(const Request& request, Result& res)
             if (!at_fine)
                 return spectrum::approx_refine_eigenpair(coarse, seed, digits, o);
             o.min_length = fine.n;
+            o.min_steps = 1;
             o.start = &last_coarse;
             return spectrum::approx_refine_eigenpair(fine, seed, digits, o);
         };

@@ -181,7 +181,7 @@ Eigenpair approx_refine_eigenpair_chord(const newton::FixedPoint& fp, const Appr
     const double lambda0 = seed.value.real();
     const double rate = fp.decay_rate > 0.05 ? fp.decay_rate : 0.5;
     const slong n_final =
-        std::min(fp.g.length(), std::max(newton::approx_length_for_digits(digits + 5, rate), options.min_length));
+        std::min(fp.n, std::max(newton::approx_length_for_digits(digits + 5, rate), options.min_length));
     const slong m = std::min<slong>({options.jacobian_size, n_final, static_cast<slong>(seed.vector.size())});
     if (m < 2) {
         ep.message = "the seed eigenvector is too short";
@@ -326,7 +326,7 @@ public:
     slong extras() const override { return 1; }
     slong length_for(double digits) const override
     {
-        return std::min(m_fp.g.length(), newton::approx_length_for_digits(digits, m_rate));
+        return std::min(m_fp.n, newton::approx_length_for_digits(digits, m_rate));
     }
     double residual(BallVec& f, const BallVec& x, slong n, slong prec) override
     {
@@ -442,7 +442,8 @@ Eigenpair approx_refine_eigenpair_krylov(const newton::FixedPoint& fp, const App
     }
     newton::KrylovOptions ko;
     ko.guard_digits = 0; // `digits` already includes the caller's guard
-    ko.min_length = std::min(options.min_length, fp.g.length());
+    ko.min_length = std::min(options.min_length, fp.n);
+    ko.min_steps = options.min_steps;
     ko.max_newton = std::min<slong>(options.max_steps, 200);
     ko.progress = options.progress;
     ko.on_step = options.on_step;
