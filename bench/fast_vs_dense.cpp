@@ -43,10 +43,10 @@ int main(int argc, char** argv)
     const auto t0 = std::chrono::steady_clock::now();
     if (std::getenv("RENORM_BENCH_PROGRESS")) {
         ro.progress = eo.progress = [t0](const newton::Progress& q) {
-            std::fprintf(stderr, "  [%7.2f s] %s step %ld: N=%ld, %ld bits, residual 1e%.0f\n",
+            std::fprintf(stderr, "  [%7.2f s] %s step %ld: N=%ld, %ld bits, residual 1e%.0f, Krylov %ld\n",
                          std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count(), q.stage.c_str(),
                          static_cast<long>(q.step), static_cast<long>(q.n), static_cast<long>(q.prec),
-                         q.log10_residual);
+                         q.log10_residual, static_cast<long>(q.krylov_steps));
         };
     }
     newton::FixedPoint start = newton::approx_continuation(p, 40, 192);

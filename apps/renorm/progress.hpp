@@ -60,10 +60,13 @@ public:
             const double s =
                 std::chrono::duration<double>(std::chrono::steady_clock::now() - m_start).count();
             const std::string left = time_left_text(p.seconds_left);
-            std::fprintf(stderr, "%s[%6.1fs] z=%s %s step %ld: N=%ld, %ld bits, residual 1e%.0f%s%s%s",
+            const std::string krylov =
+                p.krylov_steps >= 0 ? ", " + std::to_string(p.krylov_steps) + " Krylov steps" : "";
+            std::fprintf(stderr, "%s[%6.1fs] z=%s %s step %ld: N=%ld, %ld bits, residual 1e%.0f%s%s%s%s",
                          m_lines ? "" : "\r\033[K", s, p.order.c_str(), p.stage.c_str(),
                          static_cast<long>(p.step), static_cast<long>(p.n), static_cast<long>(p.prec),
-                         p.log10_residual, left.empty() ? "" : ", ", left.c_str(), m_lines ? "\n" : "");
+                         p.log10_residual, krylov.c_str(), left.empty() ? "" : ", ", left.c_str(),
+                         m_lines ? "\n" : "");
             std::fflush(stderr);
             m_dirty = !m_lines;
         };

@@ -25,6 +25,7 @@ struct Progress {
     double log10_residual = 0;
     std::string order;  ///< the order z being worked on
     double seconds_left = -1; ///< estimated time to the end of this stage (negative: unknown)
+    slong krylov_steps = -1;  ///< Krylov steps of the previous correction (Newton-Krylov only)
 };
 using ProgressFn = std::function<void(const Progress&)>;
 

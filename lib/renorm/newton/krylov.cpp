@@ -268,7 +268,9 @@ KrylovResult approx_newton_krylov(KrylovProblem& problem, KrylovState state, dou
     const double d_work = digits + options.guard_digits;
     if (state.n_final == 0)
         state.n_final = std::max(problem.length_for(d_work), options.min_length);
-    const double q_cap = std::clamp(d_work / 4.0, 20.0, options.precond_digits);
+    const double q_auto = 150.0 * std::pow(std::max(d_work, 1.0) / 1000.0, 0.4);
+    const double q_cap =
+        std::clamp(d_work / 4.0, 20.0, options.precond_digits > 0 ? options.precond_digits : q_auto);
     std::unique_ptr<KrylovPreconditioner> pc;
     if (state.pc_size > 0)
         pc = std::make_unique<KrylovPreconditioner>(problem, state.pc_point, state.pc_size, state.pc_prec);
@@ -310,7 +312,8 @@ KrylovResult approx_newton_krylov(KrylovProblem& problem, KrylovState state, dou
                 size += step_size(state.n_final, bits_for(d_work)); // the confirming residual
                 left = size * seconds_per_size;
             }
-            options.progress({options.stage, state.step, n, prec, r, options.order, left});
+            options.progress({options.stage, state.step, n, prec, r, options.order, left,
+                              res.krylov_steps.empty() ? -1 : res.krylov_steps.back()});
         }
         if (now >= d_work && n >= state.n_final && state.step >= options.min_steps) {
             if (problem.long_enough(x, n, d_work)) {

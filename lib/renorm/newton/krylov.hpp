@@ -75,8 +75,10 @@ struct KrylovOptions {
     slong max_newton = 60;
     slong max_krylov = 40;      ///< Krylov steps per restart
     slong max_restarts = 4;
-    slong precond_max = 400;    ///< largest preconditioner block m
-    double precond_digits = 150; ///< precision cap of the preconditioner, digits
+    slong precond_max = 1500;   ///< largest preconditioner block m
+    /// Precision cap of the preconditioner, digits; 0: 150 (D/1000)^0.4 for D digits. A block of
+    /// m ~ 3q + 30 modes at q digits gains about q digits a Krylov step (DEVELOPERS.md).
+    double precond_digits = 0;
     slong min_length = 0;      ///< lower bound of the final truncation
     /// Newton corrections to make even when the first residual already meets the target (1 at a
     /// second truncation: its fixed point is then solved for, not the first one's padded).
