@@ -268,7 +268,7 @@ KrylovResult approx_newton_krylov(KrylovProblem& problem, KrylovState state, dou
     const double d_work = digits + options.guard_digits;
     if (state.n_final == 0)
         state.n_final = std::max(problem.length_for(d_work), options.min_length);
-    const double q_auto = 150.0 * std::pow(std::max(d_work, 1.0) / 1000.0, 0.4);
+    const double q_auto = 150.0 * std::pow(std::max(d_work, 1.0) / 1000.0, d_work < 1000 ? 1.0 : 0.4);
     const double q_cap =
         std::clamp(d_work / 4.0, 20.0, options.precond_digits > 0 ? options.precond_digits : q_auto);
     std::unique_ptr<KrylovPreconditioner> pc;
