@@ -1,6 +1,7 @@
 // Tests of the certificate document: checksum, decimal rounding, write -> verify, rejections.
 // Sources of the check values: SHA-256 test vectors of FIPS 180-4 (the empty message, "abc" and the
 // two-block message); everything else is a round trip of the project's own file format.
+#include "test_random.hpp"
 #include <renorm/io/certificate_file.hpp>
 #include <renorm/io/sha256.hpp>
 #include <renorm/newton/fixed_point.hpp>
@@ -15,20 +16,6 @@ using namespace renorm;
 using nlohmann::json;
 
 namespace {
-
-unsigned test_seed()
-{
-    const char* s = std::getenv("RENORM_TEST_SEED");
-    unsigned seed = s ? static_cast<unsigned>(std::strtoul(s, nullptr, 10)) : 20261202u;
-    std::cout << "RENORM_TEST_SEED=" << seed << "\n";
-    return seed;
-}
-
-int multiplier()
-{
-    const char* s = std::getenv("RENORM_TEST_MULTIPLIER");
-    return s ? std::max(1, std::atoi(s)) : 1;
-}
 
 /// A certified document for z = 2 at 40 digits (small and quick).
 const std::string& good_text()
@@ -135,13 +122,13 @@ TEST(CertificateFile, EverySingleNumberChangeIsRejected)
     // Change one digit (or hex digit) of one number anywhere in the file: the checksum must
     // catch every change.
     const std::string& t = good_text();
-    std::mt19937 rng(test_seed());
+    std::mt19937 rng(test_random::seed());
     std::vector<size_t> positions;
     for (size_t i = 0; i < t.size(); ++i)
         if (std::isxdigit(static_cast<unsigned char>(t[i])))
             positions.push_back(i);
     std::uniform_int_distribution<size_t> pick(0, positions.size() - 1);
-    const int reps = 25 * multiplier();
+    const int reps = 25 * test_random::multiplier();
     for (int r = 0; r < reps; ++r) {
         std::string m = t;
         const size_t i = positions[pick(rng)];
@@ -155,7 +142,7 @@ TEST(CertificateFile, ChangedClaimsOrBoundsAreRejectedEvenWithAValidChecksum)
 {
     // Someone who recomputes the checksum still cannot claim more than was proved.
     const std::string& t = good_text();
-    std::mt19937 rng(test_seed() + 7);
+    std::mt19937 rng(test_random::seed() + 7);
     const char* keys[] = {"alpha", "delta", "G_at_0"};
     for (const char* key : keys) {
         for (const char* end : {"lower", "upper"}) {

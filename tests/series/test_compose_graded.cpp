@@ -1,3 +1,4 @@
+#include "test_random.hpp"
 #include <renorm/series/compose_graded.hpp>
 #include <renorm/series/series.hpp>
 
@@ -13,19 +14,6 @@ using namespace renorm;
 using namespace renorm::series;
 
 namespace {
-unsigned long test_seed()
-{
-    const char* s = std::getenv("RENORM_TEST_SEED");
-    unsigned long seed = s ? std::strtoul(s, nullptr, 10) : 20261202UL;
-    std::cerr << "RENORM_TEST_SEED=" << seed << "\n";
-    return seed;
-}
-int multiplier()
-{
-    const char* s = std::getenv("RENORM_TEST_MULTIPLIER");
-    return s ? std::max(1, std::atoi(s)) : 1;
-}
-
 // Random coefficients with |p_k| <= scale 2^(-bits_per_term k), alternating in sign in a
 // pattern of three.
 BallPoly random_poly(flint_rand_t st, slong len, slong bits_per_term, double scale, slong prec)
@@ -129,8 +117,8 @@ TEST(ComposeGraded, DecayingOuterSeriesMatchesArbAtFourTimesThePrecision)
     // and without a constant term, short and long truncations.
     flint_rand_t st;
     flint_randinit(st);
-    flint_randseed(st, test_seed(), 11);
-    for (int it = 0; it < multiplier(); ++it) {
+    flint_randseed(st, test_random::seed(), 11);
+    for (int it = 0; it < test_random::multiplier(); ++it) {
         for (slong n : {1, 2, 3, 7, 40, 120}) {
             const slong prec = 64 + 4 * n;
             BallPoly f = random_poly(st, n + 5, 4, 1.0, prec);
@@ -148,7 +136,7 @@ TEST(ComposeGraded, LongDecayingCaseMatchesArbAndIsAsTight)
     // 250 terms, so blocks run at reduced precision and the last ones are dropped into the radii.
     flint_rand_t st;
     flint_randinit(st);
-    flint_randseed(st, test_seed(), 12);
+    flint_randseed(st, test_random::seed(), 12);
     const slong n = 500, prec = 1000;
     BallPoly f = random_poly(st, n, 4, 1.0, prec);
     BallPoly h = inner_map(st, n, 0.4, 0.6, prec);
@@ -173,7 +161,7 @@ TEST(ComposeGraded, AsTightAsArbInTheL1NormWhenTheInnerMapExpands)
     // (source: compose_arb at prec), for flat f and for f decaying one bit a term.
     flint_rand_t st;
     flint_randinit(st);
-    flint_randseed(st, test_seed(), 17);
+    flint_randseed(st, test_random::seed(), 17);
     const slong n = 150, prec = 400;
     for (slong decay : {0, 1}) {
         BallPoly f = random_poly(st, n, decay, 1.0, prec);
@@ -194,8 +182,8 @@ TEST(ComposeGraded, NonDecayingOuterSeriesIsStillEnclosed)
     // bound, and with h0 = 0.9 the Taylor shift mixes everything.
     flint_rand_t st;
     flint_randinit(st);
-    flint_randseed(st, test_seed(), 13);
-    for (int it = 0; it < multiplier(); ++it) {
+    flint_randseed(st, test_random::seed(), 13);
+    for (int it = 0; it < test_random::multiplier(); ++it) {
         for (slong n : {2, 9, 60, 150}) {
             const slong prec = 200;
             BallPoly f = random_poly(st, n, 0, 1.0, prec);
@@ -212,7 +200,7 @@ TEST(ComposeGraded, HugeAndTinyScalesDoNotUnderflow)
     // f scaled by 2^-100000 and by 2^100000: magnitudes far outside the range of doubles.
     flint_rand_t st;
     flint_randinit(st);
-    flint_randseed(st, test_seed(), 14);
+    flint_randseed(st, test_random::seed(), 14);
     const slong n = 80, prec = 400;
     for (slong e : {-100000, 100000}) {
         BallPoly f = random_poly(st, n, 4, 1.0, prec);
@@ -227,7 +215,7 @@ TEST(ComposeGraded, SpecialShapes)
 {
     flint_rand_t st;
     flint_randinit(st);
-    flint_randseed(st, test_seed(), 15);
+    flint_randseed(st, test_random::seed(), 15);
     const slong prec = 200;
     BallPoly f = random_poly(st, 30, 3, 1.0, prec);
     // A constant inner map: only f(h0) survives (source: Arb's arb_poly_evaluate at 4x).
@@ -263,7 +251,7 @@ TEST(ComposeGraded, InputsMayBeTheSamePolynomial)
     // f(f(s)) with f(0) = 0.25: the same object passed twice.
     flint_rand_t st;
     flint_randinit(st);
-    flint_randseed(st, test_seed(), 16);
+    flint_randseed(st, test_random::seed(), 16);
     BallPoly f = inner_map(st, 60, 0.25, 0.5, 300);
     BallPoly copy = f;
     BallPoly got = compose_graded(f, f, 60, 300);

@@ -1,3 +1,4 @@
+#include "test_random.hpp"
 #include <renorm/series/compose_graded.hpp>
 #include <renorm/series/series.hpp>
 
@@ -10,18 +11,6 @@ using namespace renorm;
 using namespace renorm::series;
 
 namespace {
-unsigned long test_seed()
-{
-    const char* s = std::getenv("RENORM_TEST_SEED");
-    unsigned long seed = s ? std::strtoul(s, nullptr, 10) : 20261202UL;
-    std::cerr << "RENORM_TEST_SEED=" << seed << "\n";
-    return seed;
-}
-int multiplier()
-{
-    const char* s = std::getenv("RENORM_TEST_MULTIPLIER");
-    return s ? std::max(1, std::atoi(s)) : 1;
-}
 BallPoly random_poly(flint_rand_t st, slong len, double decay, slong prec)
 {
     BallPoly p;
@@ -43,8 +32,8 @@ TEST(Series, ComposeEqualsEvaluationOfTheComposition)
     // at a point must overlap f(h(s)) evaluated directly at 4x the precision.
     flint_rand_t st;
     flint_randinit(st);
-    flint_randseed(st, test_seed(), 7);
-    for (int it = 0; it < 5 * multiplier(); ++it) {
+    flint_randseed(st, test_random::seed(), 7);
+    for (int it = 0; it < 5 * test_random::multiplier(); ++it) {
         BallPoly f = random_poly(st, 8, 1.0, 200);
         BallPoly h = random_poly(st, 4, 1.5, 200);
         BallPoly fh = compose(f, h, 8 * 4, 200);
@@ -62,7 +51,7 @@ TEST(Series, ComposeAffineAgreesWithGeneralCompose)
 {
     flint_rand_t st;
     flint_randinit(st);
-    flint_randseed(st, test_seed(), 11);
+    flint_randseed(st, test_random::seed(), 11);
     BallPoly f = random_poly(st, 30, 1.0, 300);
     Ball b0(-0.6723), b1(0.1596);
     BallPoly lin;
@@ -82,7 +71,7 @@ TEST(Series, ComposeVariantsOverlapAndComposeDispatches)
     // its cutoff picks.
     flint_rand_t st;
     flint_randinit(st);
-    flint_randseed(st, test_seed(), 12);
+    flint_randseed(st, test_random::seed(), 12);
     for (slong n : {3, 15, 16, 17, 60, 200}) {
         for (double decay : {3.0, 0.0}) {
             BallPoly f = random_poly(st, n, decay, 400);
@@ -112,11 +101,11 @@ TEST(Series, ComposeWithRandomCutoffEqualsEvaluation)
     // h(s), both at 4x the precision.
     flint_rand_t st;
     flint_randinit(st);
-    flint_randseed(st, test_seed(), 13);
+    flint_randseed(st, test_random::seed(), 13);
     const slong saved = compose_graded_cutoff;
     compose_graded_cutoff = 1 + static_cast<slong>(n_randint(st, 64));
     std::cerr << "compose_graded_cutoff=" << compose_graded_cutoff << "\n";
-    for (int it = 0; it < 5 * multiplier(); ++it) {
+    for (int it = 0; it < 5 * test_random::multiplier(); ++it) {
         BallPoly f = random_poly(st, 10, 1.0, 200);
         BallPoly h = random_poly(st, 5, 1.5, 200);
         const slong n = 10 * 5;
