@@ -128,6 +128,11 @@ int run_solve(SolveArgs a)
         io::check_writable(a.coefficients);
     if (!a.checkpoint.empty())
         io::check_writable(a.checkpoint);
+    // A long run without a checkpoint loses everything when it is interrupted: say so up front.
+    if (const solve::Cost cost = solve::estimate_cost(req);
+        cost.seconds > 600 && a.checkpoint.empty() && !req.resume && solve::choose_basis(req) == solve::Basis::taylor)
+        std::cerr << "renorm solve: note: this run may take about " << static_cast<long>(cost.seconds / 60)
+                  << " min (rough estimate); --checkpoint FILE saves it after every Newton step\n";
     ProgressLine progress(a.quiet ? ProgressMode::none
                           : a.progress == "lines" ? ProgressMode::lines
                           : a.progress == "none"  ? ProgressMode::none

@@ -62,12 +62,18 @@ Cost estimate_cost(const Request& request)
     if (choose_basis(request) == Basis::taylor) {
         const double rate = guess_rate(zd);
         c.n = newton::approx_length_for_digits(static_cast<double>(request.digits) * 1.2 + 10, rate);
-        // About 40 series of length n at prec bits live at once (T, DT and their factors), and a
-        // dense double Jacobian of size min(n, 320).
-        const double m = std::min<double>(static_cast<double>(c.n), 320.0);
-        c.bytes = 40.0 * static_cast<double>(c.n) * limb_bytes + 3.0 * m * m * 8.0 + 64e6;
-        // Fitted to bench/solve_scaling.sh at z = 2: ~90 s at 1000 digits, growing like D^3.2.
-        c.seconds = 90.0 * std::pow(d, 3.2) * std::pow(1.24 / rate, 2.2);
+        const double n = static_cast<double>(c.n);
+        // Newton-Krylov (newton/krylov.hpp): about 40 series of length n at prec bits, the GMRES
+        // basis (up to 2 x 40 vectors at half the precision), and the preconditioner's block of
+        // m = 3 q + 30 modes at q digits (three m x m ball matrices at once).
+        const double dd = static_cast<double>(request.digits) + 10.0;
+        const double q = 150.0 * std::pow(dd / 1000.0, dd < 1000 ? 1.0 : 0.4);
+        const double m = std::min({n, 3.0 * q + 30.0, 1500.0});
+        const double pc_bytes = (q + 10.0) * 3.33 / 8.0 + 56.0;
+        c.bytes = 40.0 * n * limb_bytes + 80.0 * n * (limb_bytes / 2.0 + 24.0) + 3.0 * m * m * pc_bytes + 64e6;
+        // bench/fast_vs_dense.sh at z = 2: 25.6 s at 1000 digits for one truncation, growing like
+        // D^2 to 3000 and D^3.2 beyond (Krylov steps ~ D/q); the second truncation adds ~20%.
+        c.seconds = (d < 3.0 ? 30.0 * d * d : 270.0 * std::pow(d / 3.0, 3.2)) * std::pow(1.24 / rate, 2.2);
     } else {
         // Chebyshev coefficients decay about 2.2 / sqrt(z) digits a term (measured at z = 2, 16,
         // 24, 32); four dense n x n ball matrices live at once.
