@@ -3,7 +3,7 @@
 # renorm version and commit, the exact command, the date, and per row N, the working precision and
 # whether the row is certified or estimated. data/README.md lists the files.
 #
-#   bash scripts/make-data.sh [all|orders|certified|z2-1000]     # default: all
+#   bash scripts/make-data.sh [all|orders|certified|z2-1000|z2-3000]     # default: all
 #
 # RENORM names the renorm binary (default build/apps/renorm; build it first). THREADS sets the
 # rows computed at once (default: one per core). A table in which some row failed is still
@@ -45,4 +45,8 @@ fi
 if [[ $what == all || $what == z2-1000 ]]; then
     table alpha-delta-z2-1000.csv --orders 2 --digits 1000 --timing \
         --title "alpha and delta for z = 2 (the quadratic case), 1000 digits requested"
+fi
+if [[ $what == all || $what == z2-3000 ]]; then
+    table alpha-delta-z2-3000.csv --orders 2 --digits 3000 --timing \
+        --title "alpha and delta for z = 2 (the quadratic case), 3000 digits requested"
 fi

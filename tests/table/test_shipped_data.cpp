@@ -33,7 +33,7 @@ using namespace renorm;
 using io::RowStatus;
 
 const char* const shipped[] = {"alpha-delta-orders.csv", "alpha-delta-certified.csv",
-                               "alpha-delta-z2-1000.csv"};
+                               "alpha-delta-z2-1000.csv", "alpha-delta-z2-3000.csv"};
 
 std::string read_text(const std::string& path)
 {
@@ -51,26 +51,33 @@ io::Table load(const std::string& name)
 
 /// Units in the last place by which `a` (shown to `digits` significant digits) and the decimal
 /// string `b` differ, as a double (inf when unparsable).
+/// Enough bits to hold decimal strings of these lengths exactly enough (4 bits a character).
+slong bits_for(const std::string& a, const std::string& b = {})
+{
+    return 4 * static_cast<slong>(std::max(a.size(), b.size())) + 128;
+}
+
 double ulps_apart(const std::string& a, long digits, const std::string& b)
 {
-    auto x = ball::from_string(a, 4000);
-    auto y = ball::from_string(b, 4000);
+    const slong prec = bits_for(a, b);
+    auto x = ball::from_string(a, prec);
+    auto y = ball::from_string(b, prec);
     if (!x || !y)
         return INFINITY;
     ball::Ball d, ulp;
-    arb_sub(d.get(), x->get(), y->get(), 4000);
+    arb_sub(d.get(), x->get(), y->get(), prec);
     arb_abs(d.get(), d.get());
     const long e = static_cast<long>(std::floor(std::log10(std::fabs(x->approx_double()))));
     arb_set_ui(ulp.get(), 10);
-    arb_pow_ui(ulp.get(), ulp.get(), static_cast<ulong>(digits - 1 - e), 4000);
-    arb_mul(d.get(), d.get(), ulp.get(), 4000);
+    arb_pow_ui(ulp.get(), ulp.get(), static_cast<ulong>(digits - 1 - e), prec);
+    arb_mul(d.get(), d.get(), ulp.get(), prec);
     return d.approx_double();
 }
 
 /// `text` rounded to its first `k` significant digits (as decimal text).
 std::string first_digits(const std::string& text, long k)
 {
-    auto x = ball::from_string(text, 4000);
+    auto x = ball::from_string(text, bits_for(text));
     return x ? ball::approx_decimal(*x, k) : std::string();
 }
 
@@ -172,7 +179,28 @@ TEST(ShippedData, PublishedValues)
             ++checked;
         }
     }
-    EXPECT_GE(checked, 7); // z = 2, 4, 6 in the orders and certified tables, z = 2 at 1000 digits
+    EXPECT_GE(checked, 8); // z = 2, 4, 6 in the orders and certified tables, z = 2 at 1000 and 3000 digits
+}
+
+TEST(ShippedData, TheTwoLongRunsOfZ2AgreeOnEveryCommonDigit)
+{
+    // Two runs with different truncations (N = 826/992 against about 2450/2940), precisions and
+    // solver versions: the longer one's digits, rounded to the shorter one's, must give the
+    // shorter one's (within half a unit in the last place, plus the double rounding).
+    const io::Table t1 = load("alpha-delta-z2-1000.csv");
+    const io::Table t3 = load("alpha-delta-z2-3000.csv");
+    ASSERT_EQ(t1.rows.size(), 1u);
+    ASSERT_EQ(t3.rows.size(), 1u);
+    const io::TableRow& a = t1.rows[0];
+    const io::TableRow& b = t3.rows[0];
+    ASSERT_GE(b.alpha.digits, a.alpha.digits);
+    ASSERT_GE(b.delta.digits, a.delta.digits);
+    EXPECT_GE(a.alpha.digits, 1000);
+    EXPECT_GE(b.alpha.digits, 3000);
+    EXPECT_LE(ulps_apart(first_digits(b.alpha.text, a.alpha.digits), a.alpha.digits, a.alpha.text), 0.51);
+    EXPECT_LE(ulps_apart(first_digits(b.delta.text, a.delta.digits), a.delta.digits, a.delta.text), 0.51);
+    // And they are not the same string cut short by accident: the longer run has more digits.
+    EXPECT_GT(b.alpha.text.size(), a.alpha.text.size() + 1000);
 }
 
 /// Recomputes `rows` at min(claimed, cap) digits and checks the shipped digits.
