@@ -214,14 +214,18 @@ void register_solve(CLI::App& app, int* code)
         ->capture_default_str();
     sub->add_option("--checkpoint", args->checkpoint,
                     "save the run's state to FILE after every Newton step and every finished stage "
-                    "(Taylor basis only)");
+                    "(Taylor basis only)")
+        ->type_name("FILE");
     sub->add_option("--resume", args->resume,
                     "continue the run saved in FILE (and keep saving to it, unless --checkpoint names "
-                    "another file); the result is identical to an uninterrupted run's");
+                    "another file); the result is identical to an uninterrupted run's")
+        ->type_name("FILE");
     sub->add_option("--coefficients", args->coefficients,
-                    "also write the coefficients of G to FILE (JSON, decimal strings)");
+                    "also write the coefficients of G to FILE (JSON, decimal strings)")
+        ->type_name("FILE");
     sub->footer("Solves the doubling equation G(y) = -a G(G(y a^-z)^z), G(0) = 1, a = -1/G(1), with\n"
-                "y = |x|^z, by Newton's method on a truncated Taylor series, then finds delta (the\n"
+                "y = |x|^z, by Newton's method on a truncated Taylor series (each step doubles the\n"
+                "digits; its linear system is solved by preconditioned GMRES), then finds delta (the\n"
                 "eigenvalue of the linearised operator outside the unit disc) and the next eigenvalues,\n"
                 "each marked relevant, irrelevant, or a coordinate change alpha^(-zm). Every digit\n"
                 "printed agrees between two truncations (N and about 1.2 N). These are ESTIMATES;\n"
