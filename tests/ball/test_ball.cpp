@@ -1,3 +1,4 @@
+// Source: exact arithmetic and Arb (arb_const_pi) as named beside each check below.
 // Sources of the check values: exact arithmetic (log2 10 = 3.3219..., so 100 digits need 333 bits;
 // 1/10 computed by Arb at 256 bits), Arb's own pi (arb_const_pi) for the dump/load and digit tests.
 #include <renorm/ball/ball.hpp>

@@ -1,3 +1,4 @@
+// Source: limits known by construction (closed forms), as named beside each check below.
 // Extrapolation on sequences whose limit is known by construction (the algorithms, not the
 // physics: s_j = L + a r^j + b q^j with chosen L, a, r, b, q).
 // Sources of the check values: sequences built from closed forms with known limits (geometric

@@ -1,3 +1,4 @@
+// Source: hand-derived derivatives (exact calculus) evaluated by Arb at 4x precision.
 // Forward-mode derivatives against derivatives worked out by hand and evaluated directly with
 // Arb at 4x the precision (STYLE.md §6: containment against an independent truth).
 // Sources of the check values: derivatives of the test expressions computed by hand from the

@@ -1,3 +1,4 @@
+// Source: FIPS 180-4 SHA-256 test vectors; the rest are round trips (no reference values).
 // Tests of the certificate document: checksum, decimal rounding, write -> verify, rejections.
 // Sources of the check values: SHA-256 test vectors of FIPS 180-4 (the empty message, "abc" and the
 // two-block message); everything else is a round trip of the project's own file format.

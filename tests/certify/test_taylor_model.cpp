@@ -1,3 +1,4 @@
+// Source: exact polynomial identities, evaluated independently by Arb at higher precision.
 // Containment tests of the Taylor-model arithmetic against exact polynomial results.
 // Sources of the check values: exact polynomial identities ((1 + t)^2 = 1 + 2t + t^2, products and
 // compositions of explicit polynomials), evaluated independently by Arb at higher precision.

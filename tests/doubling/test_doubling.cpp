@@ -1,3 +1,4 @@
+// Source: central difference quotients of T and exact identities (DEVELOPERS.md), no recalled values.
 // Tests of T and DT. The central one compares DT(G)h with a central finite-difference quotient
 // of T at high precision: a wrong sign or a dropped term in either formula makes it fail.
 // Sources of the check values: a central difference quotient of T (an independent route to DT),

@@ -1,3 +1,4 @@
+// Source: none needed - a fuzz target asserts properties (no crash, no accepted forgery), no values.
 // Fuzz target: the certificate reader. verify_certificate promises never to throw for bad text
 // and to accept only a certificate whose every bound it recomputed; any crash, sanitizer report
 // or exception escaping it is a bug. A mutated certificate almost always fails its checksum, so

@@ -1,3 +1,4 @@
+// Source: none needed - a fuzz target asserts properties (no crash, no escaping exception), no values.
 // Fuzz target: the command line. The input is split at newlines into argv; the whole CLI::App of
 // `renorm` (build_app) parses it, option conversions and checks included, and is stopped before
 // any subcommand runs: the top-level parse-complete callback, which CLI11 calls before the

@@ -1,3 +1,4 @@
+// Source: none needed - a fuzz target asserts properties (parse/print round trip), no values.
 // Fuzz target: the map-expression parser of cascade/. Either parse throws ParseError (with a
 // column inside the text, or one past its end), or it returns a tree whose fully parenthesised
 // rendering parses again to the same rendering.

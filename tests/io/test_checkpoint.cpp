@@ -1,3 +1,4 @@
+// Source: none needed - the check values are the written values themselves (round trips).
 // Checkpoint files (lib/renorm/io/checkpoint.hpp): exact round trip of every field, and clear
 // rejection of truncated, altered, malformed and wrong-version files. The check values are the
 // written values themselves (a round trip must reproduce them bit for bit).
