@@ -438,7 +438,6 @@ public:
     {
         Residual r = newton::residual(krylov_series(x, n), m_problem, n, prec);
         f = krylov_vector(r.f, n);
-        m_a = r.a;
         return r.log10_norm;
     }
     void linearize(const BallVec& x, slong n, slong prec) override
@@ -475,7 +474,6 @@ public:
 private:
     Problem m_problem;
     double m_rate;
-    Ball m_a;
     std::unique_ptr<Linearization> m_lin;
     slong m_n = 0;
 };
