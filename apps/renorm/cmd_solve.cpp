@@ -31,6 +31,7 @@ struct SolveArgs {
     std::string checkpoint;
     std::string resume;
     std::string progress = "auto";
+    int threads = 0;
     // Set at registration: whether an option was given (a resumed run takes the others from the
     // checkpoint).
     CLI::Option* order_opt = nullptr;
@@ -112,6 +113,7 @@ int run_solve(SolveArgs a)
     req.basis = a.basis == "taylor"      ? solve::Basis::taylor
                 : a.basis == "chebyshev" ? solve::Basis::chebyshev
                                          : solve::Basis::automatic;
+    req.threads = a.threads;
     req.checkpoint_path = a.checkpoint;
     if (!a.resume.empty())
         req.resume = &resumed;
@@ -211,6 +213,10 @@ void register_solve(CLI::App& app, int* code)
                     "auto (one line rewritten in place when stderr is a terminal, nothing otherwise), "
                     "lines (one plain line per Newton step, also into a file or pipe), or none")
         ->check(CLI::IsMember({"auto", "lines", "none"}))
+        ->capture_default_str();
+    sub->add_option("--threads", args->threads,
+                    "threads for the large multiplications (FLINT's FFT); 0: one per core. The digits "
+                    "do not depend on it")
         ->capture_default_str();
     sub->add_option("--checkpoint", args->checkpoint,
                     "save the run's state to FILE after every Newton step and every finished stage "

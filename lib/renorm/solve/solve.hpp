@@ -32,6 +32,10 @@ struct Request {
     std::string order = "2"; ///< z > 1, decimal text
     slong digits = 100;      ///< digits wanted
     slong eigenvalues = 4;   ///< how many eigenvalues after delta to report
+    /// Threads FLINT may use inside one large multiplication (its FFT is threaded; the result is
+    /// the same bits for any count). 0: one per core. Set for this call and the calling thread
+    /// only, restored on return.
+    int threads = 1;
     newton::ProgressFn progress;
     /// Taylor basis only. Where to save a checkpoint (io/checkpoint.hpp) after every Newton step
     /// of every stage and after every finished stage; empty: none is written.
