@@ -168,6 +168,10 @@ int run_solve(SolveArgs a)
         j["log10_residual"] = r.log10_residual;
         j["certified"] = false;
         j["seconds"] = r.seconds;
+        if (r.total_seconds >= 0)
+            j["total_seconds"] = r.total_seconds; // all sittings of a resumed run
+        else
+            j["total_seconds"] = nullptr;
         std::cout << j.dump() << "\n";
         return exit_ok;
     }

@@ -7,6 +7,7 @@
 #include "table_backend.hpp"
 
 #include <renorm/io/atomic_file.hpp>
+#include <renorm/io/checkpoint.hpp>
 #include <renorm/io/table.hpp>
 #include <renorm/table/orders.hpp>
 #include <renorm/version.hpp>
@@ -44,6 +45,8 @@ struct TableArgs {
     std::string title;
     std::string from;
     std::vector<long> fallback;
+    std::string checkpoint;
+    std::string resume;
 };
 
 /// UTC date of the run, or of SOURCE_DATE_EPOCH when that is set (the reproducible-builds
@@ -207,7 +210,19 @@ int run_table(const TableArgs& a, const TableBackend& backend)
     opt.eigenvalues = a.eigenvalues;
     opt.certify = a.certify;
     opt.fallback_digits = a.fallback;
+    // A long one-order table (thousands of digits) can be saved and continued like `solve`.
+    io::Checkpoint resumed;
+    if (!a.resume.empty()) {
+        resumed = io::read_checkpoint(a.resume);
+        opt.resume = &resumed;
+    }
+    opt.checkpoint_path = !a.checkpoint.empty() ? a.checkpoint : a.resume;
     table::validate(orders, opt, available_memory_bytes());
+    if (opt.resume && backend.is_root && resumed.commit != renorm::git_commit)
+        std::cerr << backend.program << " table: note: the checkpoint was written by commit " << resumed.commit
+                  << ", this is " << renorm::git_commit << "; the result may differ in the last digits\n";
+    if (!opt.checkpoint_path.empty() && backend.is_root)
+        io::check_writable(opt.checkpoint_path, true);
     if (a.threads < 0 || a.threads > 256)
         throw BadInput("--threads must be between 0 (one per core) and 256, got " +
                        std::to_string(a.threads));
@@ -326,6 +341,15 @@ void register_table_with(CLI::App& app, int* code, TableBackend backend)
         ->capture_default_str();
     sub->add_option("--title", args->title, "title line of the provenance header");
     sub->add_flag("-q,--quiet", args->quiet, "no progress on stderr");
+    sub->add_option("--checkpoint", args->checkpoint,
+                    "one-order tables: save the row's run to FILE after every Newton step (as "
+                    "'renorm solve --checkpoint')")
+        ->type_name("FILE");
+    sub->add_option("--resume", args->resume,
+                    "one-order tables: continue the run saved in FILE (by this command or by 'renorm "
+                    "solve' with the same order, digits and eigenvalues); the timing column then "
+                    "counts all sittings")
+        ->type_name("FILE");
     sub->add_option("--from", args->from,
                     "convert the CSV table FILE (as written by this command) to --format, "
                     "keeping its provenance; computes nothing");
@@ -340,7 +364,9 @@ void register_table_with(CLI::App& app, int* code, TableBackend backend)
         "  renorm table --orders 2,4,6 --digits 30\n"
         "  renorm table --orders 1.5:8:0.5,10,12 -d 50 --format markdown --out table.md\n"
         "  renorm table --orders 2:4:1 -d 20 --certify --eigenvalues 2 --format latex\n"
-        "  renorm table --from table.csv --format markdown --out table.md");
+        "  renorm table --from table.csv --format markdown --out table.md\n"
+        "  renorm table --orders 2 -d 10000 --timing --checkpoint z2.ckpt --out z2.csv\n"
+        "  renorm table --orders 2 -d 10000 --timing --resume z2.ckpt --out z2.csv   # after a kill");
     sub->callback([args, code, backend] { *code = run_table(*args, backend); });
 }
 

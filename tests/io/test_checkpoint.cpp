@@ -205,6 +205,23 @@ TEST(Checkpoint, NoRunningStageAndNoStagesRoundTrip)
     EXPECT_TRUE(r.fixed_points.empty());
     EXPECT_TRUE(r.eigenpairs.empty());
     EXPECT_EQ(r.state.x.size(), 0);
+    EXPECT_EQ(r.seconds, -1.0) << "a file without 'seconds' (older files) reads as unknown";
+}
+
+TEST(Checkpoint, SecondsOfAllSittingsRoundTripAndMustBeSane)
+{
+    io::Checkpoint c;
+    c.order = "2";
+    c.digits = 10;
+    c.basis = "taylor";
+    c.seconds = 12345.678901234567;
+    const std::string text = io::checkpoint_text(c);
+    EXPECT_NE(text.find("\nseconds 12345.678901234567\n"), std::string::npos) << text;
+    EXPECT_EQ(io::parse_checkpoint(text).seconds, c.seconds);
+    EXPECT_NE(rejection(resign(replaced(text, "seconds 12345.678901234567", "seconds -3"))).find("'seconds'"),
+              std::string::npos);
+    EXPECT_NE(rejection(resign(replaced(text, "seconds 12345.678901234567", "seconds inf"))).find("'seconds'"),
+              std::string::npos);
 }
 
 TEST(Checkpoint, FileRoundTripThroughAtomicWrite)

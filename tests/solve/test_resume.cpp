@@ -162,8 +162,15 @@ TEST(Resume, AnInterruptedRunResumedFromItsFileGivesTheIdenticalResult)
     q4.resume = &done;
     int newton_steps = 0;
     q4.on_checkpoint = [&](const io::Checkpoint&) { ++newton_steps; };
-    expect_same_result(ref.result, solve::solve_constants(q4), "resumed from the finished file");
+    const solve::Result again = solve::solve_constants(q4);
+    expect_same_result(ref.result, again, "resumed from the finished file");
     EXPECT_EQ(newton_steps, 0) << "no stage may run again";
+    // The seconds of the three sittings add up in the file and in the result.
+    EXPECT_GT(done.seconds, 0.0);
+    EXPECT_GE(again.total_seconds, done.seconds);
+    EXPECT_LT(again.seconds, again.total_seconds);
+    done.seconds = -1; // a file that does not record them
+    EXPECT_EQ(solve::solve_constants(q4).total_seconds, -1.0);
     std::remove(path.c_str());
 }
 

@@ -36,6 +36,10 @@ if(TARGET renorm_cli)
     add_test(NAME table.cli_out_force COMMAND ${CMAKE_COMMAND} -DCLI=${_cli} -DDIR=${_tmp}
              -P ${CMAKE_CURRENT_SOURCE_DIR}/table/out_force.cmake)
 
+    # A one-order table continued from a `renorm solve` checkpoint.
+    add_test(NAME table.cli_resume_from_solve COMMAND ${CMAKE_COMMAND} -DCLI=${_cli} -DDIR=${_tmp}
+             -P ${CMAKE_CURRENT_SOURCE_DIR}/table/resume_from_solve.cmake)
+
     # Bad input: exit 2 and a one-line message naming the problem and the accepted range.
     function(table_rejects name regex)
         set(args "table;${ARGN}")
@@ -51,7 +55,9 @@ if(TARGET renorm_cli)
     table_rejects(duplicate "order 2 appears twice" --orders 2,2.0)
     table_rejects(format "unknown table format 'xlsx' \\(accepted: csv, json, markdown, latex\\)"
                   --orders 2 --format xlsx)
-    table_rejects(digits "--digits must be between 1 and 5000" --orders 2 --digits 0)
+    table_rejects(digits "--digits must be at least 1" --orders 2 --digits 0)
+    table_rejects(checkpoint_orders "--checkpoint and --resume need a table of one order, got 2"
+                  --orders 2,4 --checkpoint t.ckpt)
     table_rejects(json_needs_out "--json prints a summary and needs --out" --orders 2 --json)
     table_rejects(no_orders "--orders is required" --digits 5)
 endif()

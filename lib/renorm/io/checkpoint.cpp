@@ -317,6 +317,11 @@ Checkpoint parse_body(Reader& r)
     c.basis = r.value("basis");
     if (c.basis != "taylor" && c.basis != "chebyshev")
         r.fail("'basis' must be taylor or chebyshev, got '" + Reader::shorten(c.basis) + "'");
+    if (!r.at_end() && r.peek_key() == "seconds") {
+        c.seconds = r.real("seconds");
+        if (!std::isfinite(c.seconds) || c.seconds < 0)
+            r.fail("'seconds' must be a finite number >= 0");
+    }
     while (!r.at_end()) {
         const std::string_view key = r.peek_key();
         if (key == "fixed-point") {
@@ -371,6 +376,8 @@ std::string checkpoint_text(const Checkpoint& c)
     w.integer("digits", c.digits);
     w.integer("eigenvalues", c.eigenvalues);
     w.line("basis", c.basis);
+    if (c.seconds >= 0)
+        w.real("seconds", c.seconds);
     for (const auto& [name, fp] : c.fixed_points)
         write_fixed_point(w, name, fp);
     for (const auto& [name, ep] : c.eigenpairs)

@@ -10,6 +10,7 @@
 ///     renorm-checkpoint 1
 ///     written-by <version> <commit>
 ///     order <z text> / digits <D> / eigenvalues <k> / basis <taylor|chebyshev>
+///     seconds <wall seconds of all sittings so far>   (optional: absent in older files)
 ///     fixed-point <name>      (then n, prec, log10-residual, steps, krylov-steps, decay-rate,
 ///                              converged, disc, a <ball>, g <count> and one ball a line)
 ///     eigenpair <name>        (then n, prec, log10-residual, steps, converged, lambda <ball>,
@@ -40,6 +41,9 @@ struct Checkpoint {
     slong digits = 0;
     slong eigenvalues = 0;
     std::string basis;      ///< the basis actually used: "taylor" or "chebyshev"
+    /// Wall seconds the run has spent so far, over all sittings (when written); -1 when the file
+    /// does not say (written before this field existed).
+    double seconds = -1;
     // Provenance, from renorm/version.hpp when written (informative: not checked on reading).
     std::string version;
     std::string commit;

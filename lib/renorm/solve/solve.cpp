@@ -218,7 +218,8 @@ struct StageHooks {
 /// finished stage is recorded (and written when the request names a file).
 class Stages {
 public:
-    Stages(const Request& request, Basis basis) : m_request(request)
+    Stages(const Request& request, Basis basis)
+        : m_request(request), m_start(std::chrono::steady_clock::now())
     {
         m_active = !request.checkpoint_path.empty() || request.resume || request.on_checkpoint;
         if (request.resume) {
@@ -273,6 +274,11 @@ private:
 
     void save()
     {
+        // The seconds of earlier sittings plus this one's; unknown stays unknown.
+        const double before = m_request.resume ? m_request.resume->seconds : 0.0;
+        m_ck.seconds = before < 0 ? -1.0
+                                  : before + std::chrono::duration<double>(std::chrono::steady_clock::now() -
+                                                                           m_start).count();
         if (!m_request.checkpoint_path.empty())
             io::write_checkpoint(m_request.checkpoint_path, m_ck);
         if (m_request.on_checkpoint)
@@ -280,6 +286,7 @@ private:
     }
 
     const Request& m_request;
+    std::chrono::steady_clock::time_point m_start;
     bool m_active = false;
     io::Checkpoint m_ck;
 };
@@ -463,6 +470,8 @@ Result solve_constants(const Request& request)
         solve_chebyshev(request, res);
     }
     res.seconds = std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count();
+    const double before = request.resume ? request.resume->seconds : 0.0;
+    res.total_seconds = before < 0 ? -1.0 : before + res.seconds;
     return res;
 }
 

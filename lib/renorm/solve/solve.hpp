@@ -92,7 +92,10 @@ struct Result {
     double log10_residual = 0;
     bool converged = false;
     std::string message;            ///< why not, when not converged
-    double seconds = 0;
+    double seconds = 0;             ///< wall seconds of this call
+    /// Wall seconds of the whole run over all sittings: this call's plus those a resumed
+    /// checkpoint records; -1 when the checkpoint does not record them.
+    double total_seconds = 0;
 };
 
 /// Resources a request will need, estimated before it runs.

@@ -56,6 +56,9 @@ io::TableRow estimated_row(const std::string& order, const RowOptions& o,
     req.digits = o.digits;
     req.eigenvalues = o.eigenvalues;
     req.progress = progress;
+    req.threads = o.flint_threads;
+    req.checkpoint_path = o.checkpoint_path;
+    req.resume = o.resume;
     solve::Result r = solve::solve_constants(req);
     row.n = r.n;
     row.n_check = r.n_check;
@@ -167,9 +170,16 @@ void certify_row(io::TableRow& row, const RowOptions& o, const newton::ProgressF
 void validate(const std::vector<std::string>& orders, const RowOptions& options,
               double memory_limit_bytes)
 {
-    if (options.digits < 1 || options.digits > 5000)
-        throw std::invalid_argument("--digits must be between 1 and 5000, got " +
-                                    std::to_string(options.digits));
+    if (options.digits < 1)
+        throw std::invalid_argument("--digits must be at least 1, got " + std::to_string(options.digits));
+    if (!options.checkpoint_path.empty() || options.resume) {
+        if (orders.size() != 1)
+            throw std::invalid_argument("--checkpoint and --resume need a table of one order, got " +
+                                        std::to_string(orders.size()));
+        if (!options.fallback_digits.empty() || options.certify)
+            throw std::invalid_argument("--checkpoint and --resume cover the estimate only: not with "
+                                        "--fallback or --certify");
+    }
     if (options.eigenvalues < 0 || options.eigenvalues > 50)
         throw std::invalid_argument("--eigenvalues must be between 0 and 50, got " +
                                     std::to_string(options.eigenvalues));
@@ -185,7 +195,11 @@ void validate(const std::vector<std::string>& orders, const RowOptions& options,
         req.order = z;
         req.digits = options.digits;
         req.eigenvalues = options.eigenvalues;
+        req.checkpoint_path = options.checkpoint_path;
+        req.resume = options.resume;
         solve::validate(req, memory_limit_bytes);
+        if (options.resume)
+            solve::check_resume(req, *options.resume);
     }
 }
 
@@ -215,6 +229,8 @@ io::TableRow compute_row(const std::string& order, const RowOptions& options,
         row.note = std::string("error: ") + e.what();
     }
     row.seconds = seconds_since(t0);
+    if (options.resume)
+        row.seconds = options.resume->seconds < 0 ? -1.0 : row.seconds + options.resume->seconds;
     return row;
 }
 
@@ -265,6 +281,9 @@ std::vector<io::TableRow> compute_rows(const std::vector<std::string>& orders,
         cost[i] = approx_row_cost(orders[i], options);
     std::stable_sort(queue.begin(), queue.end(),
                      [&](size_t a, size_t b) { return cost[a] > cost[b]; });
+    const int n = std::clamp(threads, 1, static_cast<int>(orders.size()));
+    RowOptions opt = options;
+    opt.flint_threads = std::max(1, threads / n);
     std::atomic<size_t> next{0};
     std::mutex event_mutex;
     auto work = [&] {
@@ -277,7 +296,7 @@ std::vector<io::TableRow> compute_rows(const std::vector<std::string>& orders,
                 std::lock_guard<std::mutex> lock(event_mutex);
                 event(i, nullptr, false);
             }
-            rows[i] = compute_row(orders[i], options);
+            rows[i] = compute_row(orders[i], opt);
             if (event) {
                 std::lock_guard<std::mutex> lock(event_mutex);
                 event(i, &rows[i], true);
@@ -285,7 +304,6 @@ std::vector<io::TableRow> compute_rows(const std::vector<std::string>& orders,
         }
         flint_cleanup(); // this thread's caches (constants, primes)
     };
-    const int n = std::clamp(threads, 1, static_cast<int>(orders.size()));
     if (n == 1) {
         for (;;) {
             const size_t q = next.fetch_add(1);
@@ -294,7 +312,7 @@ std::vector<io::TableRow> compute_rows(const std::vector<std::string>& orders,
             const size_t i = queue[q];
             if (event)
                 event(i, nullptr, false);
-            rows[i] = compute_row(orders[i], options);
+            rows[i] = compute_row(orders[i], opt);
             if (event)
                 event(i, &rows[i], true);
         }

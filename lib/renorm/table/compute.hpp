@@ -4,6 +4,7 @@
 /// order, spread over threads in this process or over the ranks of an MPI job. Estimates promise
 /// nothing; rows marked certified come from certify::certify_constants and carry its radius.
 
+#include <renorm/io/checkpoint.hpp>
 #include <renorm/io/table.hpp>
 #include <renorm/newton/fixed_point.hpp>
 
@@ -22,9 +23,18 @@ struct RowOptions {
     /// below `digits`); the row then says in its note what failed and at how many digits it
     /// was retried. Empty: no retry.
     std::vector<long> fallback_digits;
+    /// One-order tables only (validate refuses more orders, fallback digits or --certify with
+    /// these): the row's solve saves its state to this file after every Newton step and
+    /// continues from `resume` (solve::Request's fields of the same names). A resumed row's
+    /// seconds are those of all sittings (unknown, -1, when the checkpoint does not record them).
+    std::string checkpoint_path;
+    const io::Checkpoint* resume = nullptr;
+    /// FLINT threads inside one row's large multiplications; compute_rows sets it to its threads
+    /// divided by the rows running at once.
+    int flint_threads = 1;
 };
 
-/// Checks the options (digits 1-5000, eigenvalues 0-50) and every order against the solver's
+/// Checks the options (digits >= 1, eigenvalues 0-50, checkpoints with one order only) and every order against the solver's
 /// limits, including its memory estimate. Throws std::invalid_argument naming the problem.
 void validate(const std::vector<std::string>& orders, const RowOptions& options,
               double memory_limit_bytes);
