@@ -34,7 +34,7 @@ struct Request {
     slong eigenvalues = 4;   ///< how many eigenvalues after delta to report
     /// Threads FLINT may use inside one large multiplication (its FFT is threaded; the result is
     /// the same bits for any count). 0: one per core. Set for this call and the calling thread
-    /// only, restored on return.
+    /// only, restored on return. Not always faster: bench/threads.cpp (DEVELOPERS.md).
     int threads = 1;
     newton::ProgressFn progress;
     /// Taylor basis only. Where to save a checkpoint (io/checkpoint.hpp) after every Newton step

@@ -56,7 +56,6 @@ io::TableRow estimated_row(const std::string& order, const RowOptions& o,
     req.digits = o.digits;
     req.eigenvalues = o.eigenvalues;
     req.progress = progress;
-    req.threads = o.flint_threads;
     req.checkpoint_path = o.checkpoint_path;
     req.resume = o.resume;
     solve::Result r = solve::solve_constants(req);
@@ -282,8 +281,6 @@ std::vector<io::TableRow> compute_rows(const std::vector<std::string>& orders,
     std::stable_sort(queue.begin(), queue.end(),
                      [&](size_t a, size_t b) { return cost[a] > cost[b]; });
     const int n = std::clamp(threads, 1, static_cast<int>(orders.size()));
-    RowOptions opt = options;
-    opt.flint_threads = std::max(1, threads / n);
     std::atomic<size_t> next{0};
     std::mutex event_mutex;
     auto work = [&] {
@@ -296,7 +293,7 @@ std::vector<io::TableRow> compute_rows(const std::vector<std::string>& orders,
                 std::lock_guard<std::mutex> lock(event_mutex);
                 event(i, nullptr, false);
             }
-            rows[i] = compute_row(orders[i], opt);
+            rows[i] = compute_row(orders[i], options);
             if (event) {
                 std::lock_guard<std::mutex> lock(event_mutex);
                 event(i, &rows[i], true);
@@ -312,7 +309,7 @@ std::vector<io::TableRow> compute_rows(const std::vector<std::string>& orders,
             const size_t i = queue[q];
             if (event)
                 event(i, nullptr, false);
-            rows[i] = compute_row(orders[i], opt);
+            rows[i] = compute_row(orders[i], options);
             if (event)
                 event(i, &rows[i], true);
         }

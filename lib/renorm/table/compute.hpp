@@ -29,9 +29,6 @@ struct RowOptions {
     /// seconds are those of all sittings (unknown, -1, when the checkpoint does not record them).
     std::string checkpoint_path;
     const io::Checkpoint* resume = nullptr;
-    /// FLINT threads inside one row's large multiplications; compute_rows sets it to its threads
-    /// divided by the rows running at once.
-    int flint_threads = 1;
 };
 
 /// Checks the options (digits >= 1, eigenvalues 0-50, checkpoints with one order only) and every order against the solver's
