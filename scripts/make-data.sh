@@ -3,7 +3,12 @@
 # renorm version and commit, the exact command, the date, and per row N, the working precision and
 # whether the row is certified or estimated. data/README.md lists the files.
 #
-#   bash scripts/make-data.sh [all|orders|certified|z2-1000|z2-3000]     # default: all
+#   bash scripts/make-data.sh [all|orders|certified|z2-1000|z2-3000|z2-10000]   # default: all
+#
+# z2-10000 is not part of `all`: it takes hours. It saves its state to $CKPT (default
+# build/alpha-delta-z2-10000.ckpt) after every Newton step; run the same command again after an
+# interruption and it continues from there (a checkpoint of `renorm solve -z 2 -d 10000 -k 0` is
+# accepted too).
 #
 # RENORM names the renorm binary (default build/apps/renorm; build it first). THREADS sets the
 # rows computed at once (default: one per core). A table in which some row failed is still
@@ -45,6 +50,12 @@ fi
 if [[ $what == all || $what == z2-1000 ]]; then
     table alpha-delta-z2-1000.csv --orders 2 --digits 1000 --timing \
         --title "alpha and delta for z = 2 (the quadratic case), 1000 digits requested"
+fi
+if [[ $what == z2-10000 ]]; then
+    CKPT=${CKPT:-build/alpha-delta-z2-10000.ckpt}
+    if [[ -f $CKPT ]]; then resume=(--resume "$CKPT"); else resume=(--checkpoint "$CKPT"); fi
+    table alpha-delta-z2-10000.csv --orders 2 --digits 10000 --timing "${resume[@]}" \
+        --title "alpha and delta for z = 2 (the quadratic case), 10000 digits requested"
 fi
 if [[ $what == all || $what == z2-3000 ]]; then
     table alpha-delta-z2-3000.csv --orders 2 --digits 3000 --timing \

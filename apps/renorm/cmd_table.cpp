@@ -23,6 +23,7 @@
 #include <ctime>
 #include <iostream>
 #include <memory>
+#include <mutex>
 #include <thread>
 #include <unistd.h>
 
@@ -42,6 +43,7 @@ struct TableArgs {
     bool timing = false;
     int threads = 0;
     bool quiet = false;
+    std::string progress = "auto";
     std::string title;
     std::string from;
     std::vector<long> fallback;
@@ -249,7 +251,17 @@ int run_table(const TableArgs& a, const TableBackend& backend)
 
     const int hw = static_cast<int>(std::max(1u, std::thread::hardware_concurrency()));
     const int threads = a.threads > 0 ? a.threads : hw;
-    TableProgress progress(a.quiet || !backend.is_root, orders);
+    // auto: a status line per row on a terminal; lines: a line per Newton step of every row
+    // (for logs of long rows), serialised here because rows run on several threads.
+    const bool step_lines = !a.quiet && a.progress == "lines";
+    TableProgress progress(a.quiet || a.progress != "auto" || !backend.is_root, orders);
+    ProgressLine steps(step_lines ? ProgressMode::lines : ProgressMode::none);
+    std::mutex steps_mutex;
+    if (step_lines)
+        opt.progress = [&steps_mutex, print = steps.callback()](const newton::Progress& p) {
+            std::lock_guard<std::mutex> lock(steps_mutex);
+            print(p);
+        };
     std::vector<io::TableRow> rows = backend.compute(orders, opt, threads, progress.callback());
     progress.finish();
     if (!backend.is_root)
@@ -340,7 +352,12 @@ void register_table_with(CLI::App& app, int* code, TableBackend backend)
                     "rows computed at once (0: one per core); the table does not depend on it")
         ->capture_default_str();
     sub->add_option("--title", args->title, "title line of the provenance header");
-    sub->add_flag("-q,--quiet", args->quiet, "no progress on stderr");
+    sub->add_flag("-q,--quiet", args->quiet, "no progress on stderr (the same as --progress none)");
+    sub->add_option("--progress", args->progress,
+                    "auto (a status line per row when stderr is a terminal), lines (one plain line per "
+                    "Newton step of every row, also into a file: for long rows), or none")
+        ->check(CLI::IsMember({"auto", "lines", "none"}))
+        ->capture_default_str();
     sub->add_option("--checkpoint", args->checkpoint,
                     "one-order tables: save the row's run to FILE after every Newton step (as "
                     "'renorm solve --checkpoint')")

@@ -40,6 +40,12 @@ if(TARGET renorm_cli)
     add_test(NAME table.cli_resume_from_solve COMMAND ${CMAKE_COMMAND} -DCLI=${_cli} -DDIR=${_tmp}
              -P ${CMAKE_CURRENT_SOURCE_DIR}/table/resume_from_solve.cmake)
 
+    # --progress lines: one line per Newton step of the row, also when stderr is not a terminal.
+    add_test(NAME table.cli_progress_lines COMMAND ${CMAKE_COMMAND}
+             "-DCMD=${_cli};table;--orders;2;--digits;40;--progress;lines" -DEXPECT=0
+             "-DSTDERR_REGEX=z=2 fixed-point@N step [0-9]+: N=[0-9]+, [0-9]+ bits, residual 1e-[0-9]+.*z=2 delta@1\\.2N step"
+             -P ${_expect})
+
     # Bad input: exit 2 and a one-line message naming the problem and the accepted range.
     function(table_rejects name regex)
         set(args "table;${ARGN}")

@@ -209,7 +209,7 @@ io::TableRow compute_row(const std::string& order, const RowOptions& options,
     io::TableRow row;
     row.order = order;
     try {
-        row = estimated_row(order, options, progress);
+        row = estimated_row(order, options, progress ? progress : options.progress);
         for (long d : options.fallback_digits) {
             if (row.status != io::RowStatus::failed || d >= options.digits)
                 break;

@@ -29,6 +29,9 @@ struct RowOptions {
     /// seconds are those of all sittings (unknown, -1, when the checkpoint does not record them).
     std::string checkpoint_path;
     const io::Checkpoint* resume = nullptr;
+    /// Called with every Newton step of every row's solve (Progress::order names the row), from
+    /// the worker threads at once: the callee must be thread-safe. Empty: none.
+    newton::ProgressFn progress;
 };
 
 /// Checks the options (digits >= 1, eigenvalues 0-50, checkpoints with one order only) and every order against the solver's
