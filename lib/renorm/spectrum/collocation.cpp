@@ -58,12 +58,18 @@ Eigenpair approx_collocation_eigenpair(const newton::CollocationFixedPoint& fp, 
         return ep;
     }
     const slong n = fp.n;
-    const slong prec = std::max(fp.prec, ball::digits_to_bits(static_cast<slong>(digits) + 5) + 64);
+    slong prec = std::max(fp.prec, ball::digits_to_bits(static_cast<slong>(digits) + 5) + 64);
     BallMat m(n, n), cm(n, n);
     if (!newton::collocation_dt_matrices(m, cm, fp, n, prec)) {
         ep.message = "the doubling operator is undefined at the fixed point";
         return ep;
     }
+    // The residual is absolute and the matrices' entries grow with z and n (~1e40 at z = 32,
+    // n = 435): the residual then floors at 10^-(digits of prec - log10 |M|). When it stops
+    // falling above the target, the matrices are rebuilt with the missing digits added (at most
+    // twice); the eigenpair of the matrices at the fixed point's midpoints is what is solved for.
+    int raises = 0;
+    double last_res = std::numeric_limits<double>::infinity();
     // Newton on (h, lambda): M h - lambda C h = 0, h_j = 1 (generalised form, no inverse of C).
     const slong ms = std::min<slong>(n, seed.vector.size());
     Eigen::VectorXd h0 = seed.vector.real().head(ms);
@@ -98,6 +104,17 @@ Eigenpair approx_collocation_eigenpair(const newton::CollocationFixedPoint& fp, 
             ep.converged = true;
             break;
         }
+        if (res > last_res - 1.0 && raises < 2) {
+            ++raises;
+            prec += ball::digits_to_bits(static_cast<slong>(std::ceil(res + digits)) + 10);
+            if (!newton::collocation_dt_matrices(m, cm, fp, n, prec)) {
+                ep.message = "the doubling operator is undefined at the fixed point";
+                return ep;
+            }
+            last_res = std::numeric_limits<double>::infinity();
+            continue;
+        }
+        last_res = res;
         BallMat jb(n + 1, n + 1);
         for (slong i = 0; i < n; ++i) {
             for (slong k = 0; k < n; ++k) {
