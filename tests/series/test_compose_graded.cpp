@@ -152,6 +152,27 @@ TEST(ComposeGraded, LongDecayingCaseMatchesArbAndIsAsTight)
     flint_randclear(st);
 }
 
+TEST(ComposeGraded, TwoThreadsGiveTheSameBitsAsOne)
+{
+    // n prec = 4.8e6 >= 4e6: with FLINT set to 2 threads the baby steps and the columns of
+    // every block are split over two threads (compose_graded.cpp, threads_for). The result must
+    // not depend on it (the one-thread path is checked against the truth above).
+    flint_rand_t st;
+    flint_randinit(st);
+    flint_randseed(st, test_random::seed(), 13);
+    const slong n = 1200, prec = 4000;
+    BallPoly f = random_poly(st, n, 4, 1.0, prec);
+    BallPoly h = inner_map(st, n, 0.4, 0.6, prec);
+    const int saved = flint_get_num_threads();
+    flint_set_num_threads(1);
+    BallPoly one = compose_graded(f, h, n, prec);
+    flint_set_num_threads(2);
+    BallPoly two = compose_graded(f, h, n, prec);
+    flint_set_num_threads(saved);
+    EXPECT_TRUE(arb_poly_equal(one.get(), two.get())) << "the threaded composition differs";
+    flint_randclear(st);
+}
+
 TEST(ComposeGraded, AsTightAsArbInTheL1NormWhenTheInnerMapExpands)
 {
     // ||h - h0|| = 2.05 > 1 (as v at z >= 8 on the default disc): the bounds B_j grow with j, the

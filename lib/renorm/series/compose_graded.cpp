@@ -4,13 +4,46 @@
 #include <cmath>
 #include <limits>
 #include <stdexcept>
+#include <thread>
 #include <vector>
+
+#include <flint/flint.h>
 
 namespace renorm::series {
 
 using ball::BallVec;
 
 namespace {
+
+/// Threads for one composition: FLINT's setting of the calling thread (solve::Request::threads
+/// sets it), used only when the work is large enough to pay for starting threads.
+int threads_for(slong n, slong prec)
+{
+    const int t = flint_get_num_threads();
+    return (t > 1 && static_cast<double>(n) * static_cast<double>(prec) >= 4e6) ? t : 1;
+}
+
+/// fn(lo, hi) over [0, count) cut into `threads` contiguous parts, the first in the calling
+/// thread and the others in new ones (which release FLINT's thread-local caches when done).
+/// fn must write only what its part owns; the result does not depend on `threads`.
+template <class Fn>
+void split_run(slong count, int threads, const Fn& fn)
+{
+    if (threads <= 1 || count < 2) {
+        fn(slong{0}, count);
+        return;
+    }
+    const slong parts = std::min<slong>(threads, count);
+    std::vector<std::thread> pool;
+    for (slong t = 1; t < parts; ++t)
+        pool.emplace_back([&fn, t, parts, count] {
+            fn(count * t / parts, count * (t + 1) / parts);
+            flint_cleanup();
+        });
+    fn(slong{0}, count / parts);
+    for (auto& th : pool)
+        th.join();
+}
 
 constexpr double minus_inf = -std::numeric_limits<double>::infinity();
 
@@ -119,8 +152,19 @@ BallPoly compose_graded(const BallPoly& f, const BallPoly& h, slong n, slong pre
         _arb_poly_mullow(out_coeffs, W[a * n + a], std::min(n - a, out_len), W[b * n + b],
                          std::min(n - b, out_len), out_len, prec);
     };
-    for (slong i = 2; i < m; ++i)
-        power(W[i * n + i], i, n - i);
+    // Rows i .. i + t - 1 depend only on rows <= ceil((i + t - 1) / 2) < i once i > t, so they
+    // are computed side by side on t threads (each product at the caller's FLINT setting of 1).
+    const int threads = threads_for(n, prec);
+    slong i0 = 2;
+    for (; i0 < m && i0 <= threads; ++i0)
+        power(W[i0 * n + i0], i0, n - i0);
+    for (slong i = i0; i < m; i += threads) {
+        const slong batch = std::min<slong>(threads, m - i);
+        split_run(batch, threads, [&](slong lo, slong hi) {
+            for (slong r = i + lo; r < i + hi; ++r)
+                power(W[r * n + r], r, n - r);
+        });
+    }
     BallPoly G;
     if (n > m) {
         arb_poly_fit_length(G.get(), n - m);
@@ -246,13 +290,17 @@ BallPoly compose_graded(const BallPoly& f, const BallPoly& h, slong n, slong pre
             _arb_vec_zero(R.data(), L);
         }
         // The powers w^i with i > k have no s^k term: column k needs only rows 0..min(k, mi-1).
-        Ball acc;
-        for (slong k = 0; k < L; ++k) {
-            const slong rows = std::min(mi, k + 1);
-            arb_dot(acc.get(), rlen > 0 ? R[k] : nullptr, 0, F + j * m, 1, W[k], n, rows,
-                    rlen > 0 ? qj : pj);
-            arb_swap(R[k], acc.get());
-        }
+        // Columns are independent: on several threads each owns a range of k.
+        const bool horner = rlen > 0;
+        split_run(L, threads, [&](slong lo, slong hi) {
+            Ball acc;
+            for (slong k = lo; k < hi; ++k) {
+                const slong rows = std::min(mi, k + 1);
+                arb_dot(acc.get(), horner ? R[k] : nullptr, 0, F + j * m, 1, W[k], n, rows,
+                        horner ? qj : pj);
+                arb_swap(R[k], acc.get());
+            }
+        });
         rlen = L;
     }
     if (Jc < blocks && G.length() > 0)
