@@ -219,9 +219,8 @@ void register_solve(CLI::App& app, int* code)
         ->check(CLI::IsMember({"auto", "lines", "none"}))
         ->capture_default_str();
     sub->add_option("--threads", args->threads,
-                    "threads inside the large multiplications (FLINT's FFT; 0: one per core). 2 gains "
-                    "1.2-1.7x at most sizes of thousands of digits but loses 2x at some; the digits do "
-                    "not depend on it")
+                    "threads inside products and compositions (0: one per core); 2 gained 1.1-1.4x at "
+                    "1500-3000 digits (README); the digits do not depend on it")
         ->capture_default_str();
     sub->add_option("--checkpoint", args->checkpoint,
                     "save the run's state to FILE after every Newton step and every finished stage "
