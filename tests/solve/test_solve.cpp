@@ -44,7 +44,7 @@ TEST(Solve, LargeOrderEigenpairGetsPastTheGrowthOfItsMatrices)
     // At z = 32 the collocation matrices of DT have entries near 1e40, so an eigenpair residual
     // at the precision of the request floored at 1e-94 and delta failed at 70 and 100 digits.
     // The check values are the 30 digits of the z = 32 row of data/alpha-delta-orders.csv
-    // (renorm's own table, header commit 5d150389cac5, made by the 30-digit fallback: another truncation
+    // (renorm's own table as made at commit 5d150389cac5, by the 30-digit fallback: another truncation
     // and precision), not an outside reference: none with 30 digits at z = 32 is known to us.
     const std::string z = "32";
     solve::Request q;
