@@ -91,6 +91,12 @@ io::Checkpoint sample_checkpoint()
     c.state.pc_size = 32;
     c.state.pc_prec = 200;
     c.state.pc_digits = 43.5;
+    // inside a Newton step: its residual at n = 45 (+ lambda) and the correction on 30 + 1 modes
+    c.state.f = sample_vec(46, 900);
+    c.state.f_log10 = -88.25;
+    c.state.inner = sample_vec(31, 300);
+    c.state.inner_restarts = 2;
+    c.state.inner_steps = 16;
     return c;
 }
 
@@ -191,6 +197,27 @@ TEST(Checkpoint, RoundTripKeepsEveryBitAndEveryField)
     EXPECT_EQ(r.state.pc_size, 32);
     EXPECT_EQ(r.state.pc_prec, 200);
     EXPECT_EQ(r.state.pc_digits, 43.5);
+    EXPECT_TRUE(same_vec(r.state.f, c.state.f));
+    EXPECT_TRUE(same_vec(r.state.inner, c.state.inner));
+    EXPECT_EQ(r.state.f_log10, -88.25);
+    EXPECT_EQ(r.state.inner_restarts, 2);
+    EXPECT_EQ(r.state.inner_steps, 16);
+}
+
+TEST(Checkpoint, AStateBetweenNewtonStepsHasNoMidStepLines)
+{
+    io::Checkpoint c = sample_checkpoint();
+    c.state.f = BallVec();
+    c.state.inner = BallVec();
+    const std::string text = io::checkpoint_text(c);
+    EXPECT_EQ(text.find("\nf-log10 "), std::string::npos);
+    const io::Checkpoint r = io::parse_checkpoint(text);
+    EXPECT_EQ(r.state.f.size(), 0);
+    EXPECT_EQ(r.state.inner.size(), 0);
+    // A saved correction longer than the saved residual is refused with the line.
+    io::Checkpoint bad = sample_checkpoint();
+    bad.state.inner = sample_vec(47, 300);
+    EXPECT_NE(rejection(io::checkpoint_text(bad)).find("the saved correction has 47 entries"), std::string::npos);
 }
 
 TEST(Checkpoint, NoRunningStageAndNoStagesRoundTrip)

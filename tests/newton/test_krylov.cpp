@@ -179,6 +179,79 @@ TEST(Krylov, ResumingFromAnySavedStateGivesTheSameIterate)
     }
 }
 
+TEST(Krylov, ResumingFromInsideANewtonStepGivesTheSameIterate)
+{
+    // With GMRES restarted after every Krylov step, a state is saved inside every Newton step
+    // that needs more than one (its residual and the correction so far); continuing from any of
+    // them gives the uninterrupted run's iterate bit for bit, without recomputing that residual.
+    std::vector<newton::KrylovState> saved;
+    newton::RefineOptions o;
+    o.method = newton::RefineMethod::krylov;
+    o.krylov_cycle = 1;
+    o.on_step = [&](const newton::KrylovState& s) { saved.push_back(s); };
+    newton::FixedPoint full = newton::approx_refine(start_z2(), 300, o);
+    ASSERT_TRUE(full.converged) << full.message;
+    size_t inside = 0;
+    for (size_t k = 0; k < saved.size(); ++k) {
+        if (saved[k].f.size() == 0)
+            continue;
+        ++inside;
+        EXPECT_GE(saved[k].inner_restarts, 1);
+        EXPECT_EQ(saved[k].inner_steps, saved[k].inner_restarts) << "one Krylov step a cycle";
+        newton::RefineOptions r = o;
+        r.on_step = nullptr;
+        r.resume = &saved[k];
+        newton::FixedPoint resumed = newton::approx_refine(start_z2(), 300, r);
+        ASSERT_TRUE(resumed.converged) << resumed.message;
+        EXPECT_EQ(resumed.steps, full.steps);
+        EXPECT_EQ(resumed.krylov_steps, full.krylov_steps);
+        EXPECT_TRUE(arb_poly_equal(resumed.g.get(), full.g.get())) << "resumed from saved state " << k + 1;
+    }
+    EXPECT_GE(inside, 2u) << "some Newton step needs several Krylov steps at 300 digits";
+    // The restarted solve reaches the same digits as the default (one cycle of up to 40 steps).
+    newton::RefineOptions d;
+    d.method = newton::RefineMethod::krylov;
+    newton::FixedPoint plain = newton::approx_refine(start_z2(), 300, d);
+    ASSERT_TRUE(plain.converged) << plain.message;
+    EXPECT_GE(agreeing_digits(full.a, plain.a), 300);
+}
+
+TEST(Krylov, FgmresContinuesFromARestartExactly)
+{
+    // A diagonal system with eigenvalues 30 .. 59 needs many steps when restarted every 2 (each
+    // cycle gains about a factor 3); the state after each cycle, resumed, ends at the same bits
+    // and step count.
+    const slong n = 30, prec = 300;
+    auto apply = [&](BallVec& y, const BallVec& x) {
+        y = BallVec(n);
+        for (slong k = 0; k < n; ++k)
+            arb_mul_si(y[k], x[k], 30 + k, prec);
+    };
+    auto identity = [](BallVec& y, const BallVec& x) { y = x; };
+    BallVec rhs(n);
+    for (slong k = 0; k < n; ++k)
+        arb_set_si(rhs[k], (k % 5) - 2);
+    std::vector<newton::FgmresCycle> cycles;
+    BallVec x;
+    const slong steps = newton::approx_fgmres(x, rhs, apply, identity, 30, 2, 100, prec, nullptr,
+                                              [&](const newton::FgmresCycle& c) { cycles.push_back(c); });
+    ASSERT_GT(steps, 0);
+    ASSERT_GE(cycles.size(), 2u);
+    for (size_t i = 0; i < cycles.size(); ++i) {
+        EXPECT_EQ(cycles[i].restarts, static_cast<slong>(i + 1));
+        BallVec y;
+        const slong s2 = newton::approx_fgmres(y, rhs, apply, identity, 30, 2, 100, prec, &cycles[i]);
+        EXPECT_EQ(s2, steps) << "from cycle " << i + 1;
+        bool same = true;
+        for (slong k = 0; k < n; ++k)
+            same = same && arb_equal(x[k], y[k]);
+        EXPECT_TRUE(same) << "from cycle " << i + 1;
+    }
+    // And x solves the system: x_k = rhs_k / (30 + k) to 30 digits.
+    for (slong k = 0; k < n; ++k)
+        EXPECT_NEAR(arf_get_d(arb_midref(x[k]), ARF_RND_NEAR), ((k % 5) - 2) / static_cast<double>(30 + k), 1e-15);
+}
+
 TEST(Krylov, DenseInnerSolveGivesTheSameDigitsInTheSameNewtonSteps)
 {
     // The dense path (bench/fast_vs_dense) differs only in the linear solve of each step.

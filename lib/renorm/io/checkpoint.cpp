@@ -110,6 +110,13 @@ void write_state(Writer& w, const std::string& name, const newton::KrylovState& 
     w.real("pc-digits", s.pc_digits);
     w.balls("x", s.x.data(), s.x.size());
     w.balls("pc-point", s.pc_point.data(), s.pc_point.size());
+    if (s.f.size() > 0) { // inside a Newton step (optional: absent between steps)
+        w.real("f-log10", s.f_log10);
+        w.balls("f", s.f.data(), s.f.size());
+        w.integer("inner-restarts", s.inner_restarts);
+        w.integer("inner-steps", s.inner_steps);
+        w.balls("inner", s.inner.data(), s.inner.size());
+    }
 }
 
 // ---- reading ------------------------------------------------------------------------------
@@ -296,6 +303,21 @@ newton::KrylovState read_state(Reader& r)
                " and precision " + std::to_string(s.pc_prec));
     if (!std::isfinite(s.digits) || !std::isfinite(s.pc_digits))
         r.fail("'digits' and 'pc-digits' must be finite");
+    if (!r.at_end() && r.peek_key() == "f-log10") {
+        s.f_log10 = r.real("f-log10");
+        if (!std::isfinite(s.f_log10))
+            r.fail("'f-log10' must be finite");
+        s.f = r.balls("f");
+        if (s.f.size() < s.x.size())
+            r.fail("the saved residual has " + std::to_string(s.f.size()) + " entries, fewer than the iterate's " +
+                   std::to_string(s.x.size()));
+        s.inner_restarts = r.integer("inner-restarts", 1, max_count);
+        s.inner_steps = r.integer("inner-steps", 0, max_count);
+        s.inner = r.balls("inner");
+        if (s.inner.size() < 1 || s.inner.size() > s.f.size())
+            r.fail("the saved correction has " + std::to_string(s.inner.size()) + " entries for a residual of " +
+                   std::to_string(s.f.size()));
+    }
     return s;
 }
 

@@ -16,7 +16,9 @@
 ///     eigenpair <name>        (then n, prec, log10-residual, steps, converged, lambda <ball>,
 ///                              h <count> and one ball a line)
 ///     running <name>          (then the KrylovState: n, digits, step, krylov-total, n-final,
-///                              pc-size, pc-prec, pc-digits, x <count> ..., pc-point <count> ...)
+///                              pc-size, pc-prec, pc-digits, x <count> ..., pc-point <count> ...,
+///                              and inside a Newton step: f-log10, f <count> ...,
+///                              inner-restarts, inner-steps, inner <count> ...)
 ///     sha256 <hex digest of every byte before this line>
 ///
 /// Balls are ball::dump strings (exact); doubles are written with 17 significant digits, which

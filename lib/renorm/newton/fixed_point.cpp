@@ -498,6 +498,7 @@ FixedPoint approx_refine_krylov(const FixedPoint& start, slong digits, const Ref
     ko.guard_digits = options.guard_digits;
     ko.min_length = options.min_length;
     ko.min_steps = options.min_steps;
+    ko.cycle = options.krylov_cycle;
     ko.max_newton = std::min<slong>(options.max_steps, 200);
     ko.progress = options.progress;
     ko.on_step = options.on_step;

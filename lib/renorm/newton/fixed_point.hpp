@@ -78,6 +78,7 @@ struct RefineOptions {
     double guard_digits = 10;  ///< digits solved beyond the target
     slong min_length = 0;      ///< a lower bound for the final truncation (e.g. 1.2 N)
     slong min_steps = 0;       ///< Newton-Krylov: corrections made even if the start meets the target
+    slong krylov_cycle = 0;    ///< Newton-Krylov: KrylovOptions::cycle (0: automatic)
     ProgressFn progress;
     /// Newton-Krylov only: called with the state after every Newton step (a checkpoint) ...
     std::function<void(const KrylovState&)> on_step;

@@ -145,15 +145,20 @@ void KrylovPreconditioner::apply(BallVec& y, const BallVec& v, slong n, slong pr
 slong approx_fgmres(BallVec& delta, const BallVec& b,
                     const std::function<void(BallVec&, const BallVec&)>& apply_j,
                     const std::function<void(BallVec&, const BallVec&)>& precondition, double rel_digits,
-                    slong max_steps, slong restarts, slong prec)
+                    slong max_steps, slong restarts, slong prec, const FgmresCycle* resume,
+                    const std::function<void(const FgmresCycle&)>& on_restart)
 {
     const slong len = b.size();
-    delta = BallVec(len);
+    delta = resume ? resume->delta : BallVec(len);
+    if (delta.size() != len)
+        throw std::invalid_argument("approx_fgmres: the resumed correction has the wrong length");
     const double target = log10_of(norm2(b, prec)) - rel_digits;
     if (!std::isfinite(target))
         return 0; // b = 0: delta = 0
-    slong total = 0;
-    for (slong restart = 0; restart <= restarts; ++restart) {
+    slong total = resume ? resume->steps : 0;
+    for (slong restart = resume ? resume->restarts : 0; restart <= restarts; ++restart) {
+        if (restart > 0 && on_restart && !(resume && restart == resume->restarts))
+            on_restart(FgmresCycle{delta, restart, total});
         BallVec r(len);
         if (restart == 0) {
             r = b;
@@ -290,7 +295,18 @@ KrylovResult approx_newton_krylov(KrylovProblem& problem, KrylovState state, dou
         const slong prec = bits_for(t);
         BallVec x = resized(state.x, state.n, n, ex);
         BallVec f;
-        const double r = problem.residual(f, x, n, prec);
+        // A state saved inside this step brings its residual (the same n and prec follow from
+        // the same state) and GMRES's correction so far.
+        const bool mid_step = state.f.size() > 0;
+        if (mid_step && state.f.size() != n + ex)
+            throw std::invalid_argument("approx_newton_krylov: the saved residual has length " +
+                                        std::to_string(state.f.size()) + ", the step needs " +
+                                        std::to_string(n + ex));
+        const double r = mid_step ? state.f_log10 : problem.residual(f, x, n, prec);
+        if (mid_step) {
+            f = std::move(state.f);
+            state.f = BallVec();
+        }
         if (!std::isfinite(r)) {
             res.message = "Newton-Krylov: the residual is not finite at step " + std::to_string(state.step) +
                           " (n = " + std::to_string(n) + ")";
@@ -373,17 +389,42 @@ KrylovResult approx_newton_krylov(KrylovProblem& problem, KrylovState state, dou
         problem.linearize(x, n_in, p_in);
         BallVec b = resized(f, n, n_in, ex);
         BallVec d_in;
+        // Restart cycles of bounded work (a checkpoint at each), the same total budget of steps.
+        const slong cycle = options.cycle > 0 ? options.cycle : std::clamp<slong>(
+            static_cast<slong>(options.restart_work / (static_cast<double>(n_in) * static_cast<double>(p_in))),
+            std::min<slong>(6, options.max_krylov), options.max_krylov);
+        const slong budget = options.max_krylov * (options.max_restarts + 1);
+        const slong cycles = (budget + cycle - 1) / cycle;
+        FgmresCycle saved;
+        if (mid_step) {
+            saved = FgmresCycle{std::move(state.inner), state.inner_restarts, state.inner_steps};
+            state.inner = BallVec();
+        }
+        auto on_restart = [&](const FgmresCycle& c) {
+            if (!options.on_step)
+                return;
+            state.f = f;
+            state.f_log10 = r;
+            state.inner = c.delta;
+            state.inner_restarts = c.restarts;
+            state.inner_steps = c.steps;
+            options.on_step(state);
+            state.f = BallVec();
+            state.inner = BallVec();
+            state.inner_restarts = state.inner_steps = 0;
+            state.f_log10 = 0;
+        };
         const slong ks = options.dense_inner ? dense_solve(d_in, problem, x, b, n_in, p_in) : approx_fgmres(
             d_in, b, [&](BallVec& y, const BallVec& v) { problem.apply(y, v, p_in); },
-            [&](BallVec& y, const BallVec& v) { pc->apply(y, v, n_in, p_in); }, k_rel, options.max_krylov,
-            options.max_restarts, p_in);
+            [&](BallVec& y, const BallVec& v) { pc->apply(y, v, n_in, p_in); }, k_rel, cycle,
+            cycles - 1, p_in, mid_step ? &saved : nullptr, on_restart);
         if (ks < 0 && options.dense_inner) {
             res.message = "Newton: the dense Jacobian is numerically singular at step " + std::to_string(state.step);
             break;
         }
         if (ks < 0) {
             res.message = "Newton-Krylov: GMRES did not reach 1e-" + std::to_string(static_cast<int>(k_rel)) +
-                          " in " + std::to_string(options.max_krylov * (options.max_restarts + 1)) +
+                          " in " + std::to_string(cycle * cycles) +
                           " steps at Newton step " + std::to_string(state.step);
             break;
         }

@@ -67,6 +67,14 @@ struct KrylovState {
     slong pc_size = 0;       ///< its block size m
     slong pc_prec = 0;       ///< its precision, bits
     double pc_digits = 0;    ///< digits pc_point had
+    // Inside a Newton step (empty `f`: between steps). A long correction is saved at every
+    // restart of its GMRES, so that an interrupted run loses at most one restart cycle: the
+    // step's residual (the full-cost evaluation) and the correction so far.
+    BallVec f;               ///< residual of the running step, at its truncation and precision
+    double f_log10 = 0;      ///< what problem.residual() returned for it
+    BallVec inner;           ///< GMRES's correction so far (length n_in + extras)
+    slong inner_restarts = 0;///< restart cycles done
+    slong inner_steps = 0;   ///< Krylov steps done in this Newton step
 };
 
 /// Options of approx_newton_krylov().
@@ -90,7 +98,14 @@ struct KrylovOptions {
     ProgressFn progress;
     std::string stage = "newton-krylov"; ///< progress label
     std::string order;                   ///< progress label
-    /// Called after every Newton step with the state to save (a checkpoint).
+    /// Restart cycles are shortened for large systems so that each takes a bounded time: a
+    /// cycle has at most restart_work / (n_in prec) Krylov steps (at least 6, at most
+    /// max_krylov; 1e9 gives 8 steps, about 35 min on this machine, at 10,000
+    /// digits, 40 below 3000). Deterministic, so a resumed run restarts where the first did.
+    double restart_work = 1e9;
+    slong cycle = 0; ///< a fixed restart length instead (tests use 1 to save inside every step)
+    /// Called after every Newton step with the state to save (a checkpoint), and within a step
+    /// at every GMRES restart (then with `f` and `inner` set).
     std::function<void(const KrylovState&)> on_step;
 };
 
@@ -113,13 +128,24 @@ struct KrylovResult {
 KrylovResult approx_newton_krylov(KrylovProblem& problem, KrylovState start, double digits,
                                   const KrylovOptions& options);
 
+/// Where a restarted GMRES solve stands after a cycle: enough to continue it exactly.
+struct FgmresCycle {
+    BallVec delta;      ///< the correction so far
+    slong restarts = 0; ///< cycles done
+    slong steps = 0;    ///< Krylov steps done
+};
+
 /// Flexible GMRES for J delta = b with right preconditioner `precondition`, at `prec` bits,
-/// to ||b - J delta||_2 <= 10^-rel_digits ||b||_2. Returns the Krylov steps taken, or -1 when
-/// the tolerance is not reached within max_steps * (restarts + 1). No guarantee.
+/// to ||b - J delta||_2 <= 10^-rel_digits ||b||_2, restarted every max_steps steps. Returns the
+/// Krylov steps taken, or -1 when the tolerance is not reached within max_steps * (restarts + 1).
+/// `on_restart` (if set) sees the state after every cycle that does not end the solve;
+/// `resume` continues from such a state (the same steps follow as without the interruption).
+/// No guarantee.
 slong approx_fgmres(BallVec& delta, const BallVec& b,
                     const std::function<void(BallVec&, const BallVec&)>& apply_j,
                     const std::function<void(BallVec&, const BallVec&)>& precondition, double rel_digits,
-                    slong max_steps, slong restarts, slong prec);
+                    slong max_steps, slong restarts, slong prec, const FgmresCycle* resume = nullptr,
+                    const std::function<void(const FgmresCycle&)>& on_restart = {});
 
 /// The series part x_0 .. x_{n-1} of an unknown vector as a polynomial. Exact.
 BallPoly krylov_series(const BallVec& x, slong n);

@@ -444,6 +444,7 @@ Eigenpair approx_refine_eigenpair_krylov(const newton::FixedPoint& fp, const App
     ko.guard_digits = 0; // `digits` already includes the caller's guard
     ko.min_length = std::min(options.min_length, fp.n);
     ko.min_steps = options.min_steps;
+    ko.cycle = options.krylov_cycle;
     ko.max_newton = std::min<slong>(options.max_steps, 200);
     ko.progress = options.progress;
     ko.on_step = options.on_step;

@@ -90,6 +90,7 @@ struct EigenOptions {
     slong max_steps = 400;
     slong min_length = 0; ///< lower bound for the truncation
     slong min_steps = 0;  ///< Newton-Krylov: corrections made even if the start meets the target
+    slong krylov_cycle = 0; ///< Newton-Krylov: KrylovOptions::cycle (0: automatic)
     /// A converged eigenpair from the same seed (e.g. at a shorter truncation) to start from
     /// instead of the double seed; it must outlive the call.
     const Eigenpair* start = nullptr;
