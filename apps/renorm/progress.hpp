@@ -61,7 +61,9 @@ public:
                 std::chrono::duration<double>(std::chrono::steady_clock::now() - m_start).count();
             const std::string left = time_left_text(p.seconds_left);
             const std::string krylov =
-                p.krylov_steps >= 0 ? ", " + std::to_string(p.krylov_steps) + " Krylov steps" : "";
+                p.krylov_running >= 0 ? ", correcting: " + std::to_string(p.krylov_running) + " Krylov steps so far"
+                : p.krylov_steps >= 0 ? ", " + std::to_string(p.krylov_steps) + " Krylov steps"
+                                      : "";
             std::fprintf(stderr, "%s[%6.1fs] z=%s %s step %ld: N=%ld, %ld bits, residual 1e%.0f%s%s%s%s",
                          m_lines ? "" : "\r\033[K", s, p.order.c_str(), p.stage.c_str(),
                          static_cast<long>(p.step), static_cast<long>(p.n), static_cast<long>(p.prec),

@@ -189,8 +189,11 @@ TEST(Krylov, ResumingFromInsideANewtonStepGivesTheSameIterate)
     o.method = newton::RefineMethod::krylov;
     o.krylov_cycle = 1;
     o.on_step = [&](const newton::KrylovState& s) { saved.push_back(s); };
+    slong running_reports = 0; // progress inside corrections, at each restart
+    o.progress = [&](const newton::Progress& p) { running_reports += p.krylov_running >= 1 ? 1 : 0; };
     newton::FixedPoint full = newton::approx_refine(start_z2(), 300, o);
     ASSERT_TRUE(full.converged) << full.message;
+    o.progress = nullptr;
     size_t inside = 0;
     for (size_t k = 0; k < saved.size(); ++k) {
         if (saved[k].f.size() == 0)
@@ -208,6 +211,7 @@ TEST(Krylov, ResumingFromInsideANewtonStepGivesTheSameIterate)
         EXPECT_TRUE(arb_poly_equal(resumed.g.get(), full.g.get())) << "resumed from saved state " << k + 1;
     }
     EXPECT_GE(inside, 2u) << "some Newton step needs several Krylov steps at 300 digits";
+    EXPECT_EQ(running_reports, static_cast<slong>(inside)) << "one progress report per saved restart";
     // The restarted solve reaches the same digits as the default (one cycle of up to 40 steps).
     newton::RefineOptions d;
     d.method = newton::RefineMethod::krylov;

@@ -26,6 +26,9 @@ struct Progress {
     std::string order;  ///< the order z being worked on
     double seconds_left = -1; ///< estimated time to the end of this stage (negative: unknown)
     slong krylov_steps = -1;  ///< Krylov steps of the previous correction (Newton-Krylov only)
+    /// Inside a long correction (reported at its GMRES restarts): Krylov steps done so far;
+    /// log10_residual is then the residual the correction started from. -1 otherwise.
+    slong krylov_running = -1;
 };
 using ProgressFn = std::function<void(const Progress&)>;
 

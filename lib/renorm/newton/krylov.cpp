@@ -401,6 +401,11 @@ KrylovResult approx_newton_krylov(KrylovProblem& problem, KrylovState state, dou
             state.inner = BallVec();
         }
         auto on_restart = [&](const FgmresCycle& c) {
+            if (options.progress) {
+                Progress p{options.stage, state.step, n, prec, r, options.order, -1, -1};
+                p.krylov_running = c.steps;
+                options.progress(p);
+            }
             if (!options.on_step)
                 return;
             state.f = f;
