@@ -118,6 +118,27 @@ TEST(Expression, SyntaxErrorsGiveColumnAndWhatWasExpected)
     EXPECT_EQ(error_column("1 - mu*x^"), 10);
 }
 
+TEST(Expression, DeepNestingIsRefusedNotACrash)
+{
+    // Found by the fuzzer: 2800 '(' overflowed the stack of the recursive parser.
+    for (const std::string& text : {std::string("2^") + std::string(2800, '('), std::string(5000, '-') + "x",
+                                    std::string(400, '(') + "x" + std::string(400, ')')}) {
+        try {
+            Expression::parse(text);
+            ADD_FAILURE() << "accepted a nesting of " << text.size() << " characters";
+        } catch (const cascade::ParseError& e) {
+            EXPECT_NE(std::string(e.what()).find("nests deeper than 200 levels"), std::string::npos) << e.what();
+        }
+    }
+    // A long flat chain builds a deep tree: refused as well; 150 levels are fine.
+    std::string chain = "x";
+    for (int i = 0; i < 300; ++i)
+        chain += "+1";
+    EXPECT_THROW(Expression::parse(chain), cascade::ParseError);
+    std::string ok = std::string(150, '(') + "mu*x" + std::string(150, ')');
+    EXPECT_NO_THROW(Expression::parse(ok));
+}
+
 TEST(Expression, UnknownNamesAreReportedByName)
 {
     EXPECT_EQ(error_column("1 - mu*y^2"), 8);

@@ -1,5 +1,7 @@
 #include <renorm/cascade/expression.hpp>
 
+#include <algorithm>
+
 #include <cctype>
 #include <utility>
 
@@ -38,6 +40,7 @@ public:
 private:
     const std::string& m_s;
     std::size_t m_i = 0;
+    int m_depth = 0;
     Expression m_e;
 
     [[noreturn]] void fail(const std::string& msg) const
@@ -78,8 +81,12 @@ private:
             if (c >= 0) {
                 n.dep_x = n.dep_x || m_e.m_nodes[c].dep_x;
                 n.dep_mu = n.dep_mu || m_e.m_nodes[c].dep_mu;
+                n.depth = std::max(n.depth, m_e.m_nodes[c].depth + 1);
             }
         }
+        if (n.depth > max_expression_depth)
+            throw ParseError(column, "the expression nests deeper than " + std::to_string(max_expression_depth) +
+                                         " levels (operators, parentheses or signs)");
         m_e.m_nodes.push_back(std::move(n));
         return static_cast<int>(m_e.m_nodes.size()) - 1;
     }
@@ -114,6 +121,15 @@ private:
     }
     int unary()
     {
+        // Every recursion of the parser passes here: bound it before the stack is.
+        struct Depth {
+            int& d;
+            explicit Depth(int& v) : d(++v) {}
+            ~Depth() { --d; }
+        } depth(m_depth);
+        if (m_depth > max_expression_depth)
+            fail("the expression nests deeper than " + std::to_string(max_expression_depth) +
+                 " levels (operators, parentheses or signs)");
         skip_space();
         int col = static_cast<int>(m_i) + 1;
         if (accept('-'))

@@ -49,7 +49,12 @@ struct Node {
     bool dep_x = false;   ///< the subtree depends on x
     bool dep_mu = false;  ///< the subtree depends on mu
     int column = 0;       ///< 1-based column where the node starts in the source
+    int depth = 1;        ///< height of the subtree (parsing refuses more than max_expression_depth)
 };
+
+/// The deepest expression accepted (nesting of parentheses, signs, powers, and chains of
+/// operators): every walk over the tree is then safe from stack exhaustion.
+inline constexpr int max_expression_depth = 200;
 
 /// A syntax error: the 1-based column and a message saying what was expected or unknown.
 class ParseError : public std::invalid_argument {
