@@ -127,10 +127,11 @@ private:
             explicit Depth(int& v) : d(++v) {}
             ~Depth() { --d; }
         } depth(m_depth);
-        // Three times the tree's limit: the fully parenthesised rendering of an accepted tree
-        // (two levels per node at most: a sign and its parentheses) must parse again.
-        if (m_depth > 3 * max_expression_depth)
-            fail("the expression nests deeper than " + std::to_string(3 * max_expression_depth) +
+        // Four times the tree's limit: the fully parenthesised rendering of an accepted tree
+        // (at most three levels per node: parentheses, a sign or power, a function's
+        // parentheses) must parse again.
+        if (m_depth > 4 * max_expression_depth)
+            fail("the expression nests deeper than " + std::to_string(4 * max_expression_depth) +
                  " parentheses, signs or powers");
         skip_space();
         int col = static_cast<int>(m_i) + 1;
