@@ -220,6 +220,37 @@ TEST(Krylov, ResumingFromInsideANewtonStepGivesTheSameIterate)
     EXPECT_GE(agreeing_digits(full.a, plain.a), 300);
 }
 
+TEST(Krylov, EigenpairResumedFromInsideANewtonStepIsTheSame)
+{
+    // The same for delta's eigenpair (the stage that runs longest at thousands of digits).
+    newton::RefineOptions o;
+    newton::FixedPoint fp = newton::approx_refine(start_z2(), 200, o);
+    ASSERT_TRUE(fp.converged) << fp.message;
+    auto seeds = spectrum::approx_eigenvalues_dense(fp.g, fp.problem, 60, 128);
+    std::vector<newton::KrylovState> saved;
+    spectrum::EigenOptions eo;
+    eo.krylov_cycle = 1;
+    eo.on_step = [&](const newton::KrylovState& s) { saved.push_back(s); };
+    const spectrum::Eigenpair full = spectrum::approx_refine_eigenpair(fp, seeds[0], 190, eo);
+    ASSERT_TRUE(full.converged) << full.message;
+    // Source: 100 digits of delta, from memory and confirmed by certify/ (reference_values.hpp).
+    EXPECT_GE(agreeing_digits(full.lambda, test_ref::delta_z2), 100);
+    size_t inside = 0;
+    for (size_t k = 0; k < saved.size(); ++k) {
+        if (saved[k].f.size() == 0)
+            continue;
+        ++inside;
+        spectrum::EigenOptions r;
+        r.krylov_cycle = 1;
+        r.resume = &saved[k];
+        const spectrum::Eigenpair again = spectrum::approx_refine_eigenpair(fp, seeds[0], 190, r);
+        ASSERT_TRUE(again.converged) << again.message;
+        EXPECT_TRUE(arb_equal(again.lambda.get(), full.lambda.get())) << "resumed from saved state " << k + 1;
+        EXPECT_TRUE(arb_poly_equal(again.h.get(), full.h.get())) << "resumed from saved state " << k + 1;
+    }
+    EXPECT_GE(inside, 1u) << "delta's last correction needs several Krylov steps at 190 digits";
+}
+
 TEST(Krylov, FgmresContinuesFromARestartExactly)
 {
     // A diagonal system with eigenvalues 30 .. 59 needs many steps when restarted every 2 (each
