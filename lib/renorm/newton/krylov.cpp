@@ -283,6 +283,7 @@ KrylovResult approx_newton_krylov(KrylovProblem& problem, KrylovState state, dou
     double prev = -std::numeric_limits<double>::infinity();
     slong stalls = 0;
     double seconds_per_size = 0; // measured cost model for the time estimate
+    double measured_size = 0;    // the size of the step it was measured on
     for (; state.step < options.max_newton;) {
         const auto t_start = std::chrono::steady_clock::now();
         const double e = state.digits;
@@ -316,9 +317,12 @@ KrylovResult approx_newton_krylov(KrylovProblem& problem, KrylovState state, dou
         res.prec = prec;
         const double now = -r;
         if (options.progress) {
-            // Time left: the steps still to come, sized like the one just measured.
+            // Time left: the steps still to come, sized like the one just measured. Not from
+            // steps below 1% of the last one's size: their fixed costs (a preconditioner's LU)
+            // dominate, and the estimate came out at thousands of hours at 10,000 digits.
             double left = -1;
-            if (seconds_per_size > 0) {
+            if (seconds_per_size > 0 &&
+                measured_size >= 0.01 * step_size(state.n_final, bits_for(d_work))) {
                 double tt = t, ee = std::min(t, 2.0 * now - 2.0), size = 0;
                 for (int guard = 0; guard < 64 && ee < d_work; ++guard) {
                     tt = std::min(d_work, std::max(2.0 * ee - 2.0, ee + 4.0));
@@ -449,7 +453,8 @@ KrylovResult approx_newton_krylov(KrylovProblem& problem, KrylovState state, dou
         state.krylov_total += ks;
         ++state.step;
         const double secs = std::chrono::duration<double>(std::chrono::steady_clock::now() - t_start).count();
-        seconds_per_size = secs / step_size(n, prec);
+        measured_size = step_size(n, prec);
+        seconds_per_size = secs / measured_size;
         if (options.on_step)
             options.on_step(state);
     }
