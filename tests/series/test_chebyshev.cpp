@@ -1,3 +1,5 @@
+// Source: none needed beyond closed forms computed in the test (Chebyshev identities, exact
+// polynomials); no published constants.
 #include <renorm/series/chebyshev.hpp>
 
 #include <gtest/gtest.h>

@@ -1,3 +1,5 @@
+// Source: none needed beyond closed forms worked out beside each check (e.g. the l1 norm 1.875 of
+// 1 + s/2 + s^2/4 + s^3/8, a geometric decay rate of exactly 1 digit a term); no published constants.
 #include "test_random.hpp"
 #include <renorm/series/compose_graded.hpp>
 #include <renorm/series/series.hpp>

@@ -1,3 +1,4 @@
+// Source: none needed - parsing only; the expected lists are the inputs' exact decimal ranges.
 // Parsing the list of orders of a table (lib/renorm/table/orders): lists, exact decimal ranges,
 // and every kind of bad input with a message naming the problem and the accepted range.
 #include <renorm/table/orders.hpp>

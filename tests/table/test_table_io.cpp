@@ -1,3 +1,4 @@
+// Source: none needed - format and round trip only; values are demo strings (see below).
 // The table model's writers and the CSV reader (lib/renorm/io/table): structure of every format,
 // escaping, and the CSV round trip. The values here are demo strings, not computed constants.
 #include <renorm/io/table.hpp>

@@ -1,3 +1,5 @@
+// Source: none needed - it checks that the installed package builds, links and runs (exit code);
+// it asserts no value.
 // Uses the installed renorm package: alpha for z = 2 to 20 digits.
 #include <renorm/solve/solve.hpp>
 #include <renorm/version.hpp>
