@@ -24,6 +24,7 @@ void build_app(CLI::App& app, int* code)
     register_verify(app, code);
     register_table(app, code);
     register_plot(app, code);
+    register_checkpoint(app, code);
 }
 
 } // namespace renorm::app

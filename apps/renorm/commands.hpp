@@ -30,6 +30,7 @@ void register_certify(CLI::App& app, int* code);
 void register_verify(CLI::App& app, int* code);
 void register_table(CLI::App& app, int* code);
 void register_plot(CLI::App& app, int* code);
+void register_checkpoint(CLI::App& app, int* code);
 
 /// The whole command line: description, --version, footer and every subcommand above.
 void build_app(CLI::App& app, int* code);

@@ -27,6 +27,17 @@ if(TARGET renorm_cli)
     add_test(NAME app.solve_resume_finished COMMAND ${_cli} solve --resume ${_small} --quiet)
     set_tests_properties(app.solve_resume_finished PROPERTIES FIXTURES_REQUIRED solve_ckpt
         PASS_REGULAR_EXPRESSION "delta = 4\\.66920160910299067185320382047\n")
+    # `renorm checkpoint FILE`: every stage of the finished small run, with alpha and delta to
+    # 20 digits (the first 17 are OEIS A006891 / A006890's, see reference_values.hpp).
+    add_test(NAME app.checkpoint_status COMMAND ${_cli} checkpoint ${_small})
+    set_tests_properties(app.checkpoint_status PROPERTIES FIXTURES_REQUIRED solve_ckpt
+        PASS_REGULAR_EXPRESSION "z = 2, 30 digits, 0 eigenvalues after delta, taylor basis\n.*stages \\(4 of 4 finished\\):\n  fixed-point@N: finished, N = [0-9]+, [0-9]+ bits, residual [1-9]\\.[0-9]e-[0-9]+, value 2\\.50290787509589282[0-9]*\\.\\.\\.\n.*  delta@1\\.2N: finished, N = [0-9]+, [0-9]+ bits, residual [1-9]\\.[0-9]e-[0-9]+, value 4\\.66920160910299067[0-9]*\\.\\.\\.\n.*ESTIMATES")
+    add_test(NAME app.checkpoint_status_json COMMAND ${_cli} checkpoint ${_small} --json)
+    set_tests_properties(app.checkpoint_status_json PROPERTIES FIXTURES_REQUIRED solve_ckpt
+        PASS_REGULAR_EXPRESSION "\"name\": \"delta@N\",[^}]*\"state\": \"finished\",[^}]*\"value\": \"4\\.669201609102990671")
+    add_test(NAME app.checkpoint_status_garbage COMMAND ${CMAKE_COMMAND}
+             "-DCMD=${_cli};checkpoint;${CMAKE_CURRENT_SOURCE_DIR}/CMakeLists.txt" -DEXPECT=2 -DONE_LINE=1
+             "-DSTDERR_REGEX=not a renorm checkpoint" -P ${_expect})
     # Truncated (the first 300 bytes of a valid file).
     set(_cut ${_dir}/solve_truncated.ckpt)
     add_test(NAME app.solve_resume_truncated COMMAND ${CMAKE_COMMAND}

@@ -174,6 +174,60 @@ TEST(Resume, AnInterruptedRunResumedFromItsFileGivesTheIdenticalResult)
     std::remove(path.c_str());
 }
 
+TEST(Resume, StatusOfACheckpointNamesEachStageAndHowFarItGot)
+{
+    const Reference& ref = reference();
+    ASSERT_TRUE(ref.result.converged) << ref.result.message;
+    using State = solve::StageStatus::State;
+    // The first checkpoint saved while delta@N runs: both fixed points finished, with alpha.
+    const io::Checkpoint* mid = nullptr;
+    for (const io::Checkpoint& c : ref.checkpoints)
+        if (c.running == "delta@N" && c.state.step >= 1) {
+            mid = &c;
+            break;
+        }
+    ASSERT_NE(mid, nullptr);
+    const std::vector<solve::StageStatus> s = solve::checkpoint_status(*mid);
+    ASSERT_EQ(s.size(), 8u); // fixed point, delta and 2 eigenvalues, each at N and 1.2 N
+    EXPECT_EQ(s[0].name, "fixed-point@N");
+    EXPECT_EQ(s[0].state, State::finished);
+    EXPECT_EQ(s[1].name, "fixed-point@1.2N");
+    EXPECT_EQ(s[1].state, State::finished);
+    EXPECT_GT(s[1].n, s[0].n);
+    EXPECT_LT(s[1].log10_residual, -150);
+    // alpha to 20 digits; the first 17 are those of OEIS A006891 (reference_values.hpp), the
+    // 20th is rounded
+    for (int k : {0, 1}) {
+        EXPECT_EQ(s[k].value.size(), 21u) << s[k].value; // 20 digits and the point
+        EXPECT_EQ(s[k].value.substr(0, 18), std::string(test_ref::alpha_z2).substr(0, 18));
+    }
+    EXPECT_EQ(s[2].name, "delta@N");
+    EXPECT_EQ(s[2].state, State::running);
+    EXPECT_EQ(s[2].step, mid->state.step);
+    EXPECT_EQ(s[2].n, mid->state.n);
+    EXPECT_GT(s[2].digits, 10.0);
+    EXPECT_EQ(s[2].inner_steps, -1) << "saved between two Newton steps";
+    for (size_t k = 3; k < s.size(); ++k)
+        EXPECT_EQ(s[k].state, State::waiting) << s[k].name;
+    EXPECT_EQ(s[7].name, "eigenvalue-2@1.2N");
+    // Saved inside a Newton step (as at a GMRES restart of a long run): that step's truncation,
+    // residual and Krylov steps so far.
+    io::Checkpoint inside = *mid;
+    inside.state.f = ball::BallVec(mid->state.n + 7);
+    inside.state.f_log10 = -123.5;
+    inside.state.inner_steps = 5;
+    const solve::StageStatus r = solve::checkpoint_status(inside)[2];
+    EXPECT_EQ(r.inner_steps, 5);
+    EXPECT_EQ(r.step_n, mid->state.n + 6) << "the eigenvalue is not a coefficient";
+    EXPECT_EQ(r.step_log10_residual, -123.5);
+    // The finished run: delta at both truncations, to 20 digits (OEIS A006890's first 17).
+    const std::vector<solve::StageStatus> done = solve::checkpoint_status(ref.checkpoints.back());
+    for (int k : {2, 3}) {
+        EXPECT_EQ(done[k].state, State::finished) << done[k].name;
+        EXPECT_EQ(done[k].value.substr(0, 18), std::string(test_ref::delta_z2).substr(0, 18));
+    }
+}
+
 TEST(Resume, AMismatchingRequestIsRefusedNamingTheDifference)
 {
     const Reference& ref = reference();

@@ -166,6 +166,45 @@ std::vector<std::string> stage_names(const Request& request)
     return names;
 }
 
+std::vector<StageStatus> checkpoint_status(const io::Checkpoint& c)
+{
+    Request q;
+    q.eigenvalues = c.eigenvalues;
+    std::vector<StageStatus> out;
+    for (const std::string& name : stage_names(q)) {
+        StageStatus s;
+        s.name = name;
+        if (auto it = c.fixed_points.find(name); it != c.fixed_points.end()) {
+            s.state = StageStatus::State::finished;
+            s.n = it->second.n;
+            s.prec = it->second.prec;
+            s.log10_residual = it->second.log10_residual;
+            s.value = ball::approx_decimal(it->second.a, 20);
+        } else if (auto e = c.eigenpairs.find(name); e != c.eigenpairs.end()) {
+            s.state = StageStatus::State::finished;
+            s.n = e->second.n;
+            s.prec = e->second.prec;
+            s.log10_residual = e->second.log10_residual;
+            s.value = ball::approx_decimal(e->second.lambda, 20);
+        } else if (name == c.running) {
+            s.state = StageStatus::State::running;
+            s.n = c.state.n;
+            s.digits = c.state.digits;
+            s.step = c.state.step;
+            s.krylov_steps = c.state.krylov_total;
+            s.target_n = c.state.n_final;
+            if (c.state.f.size() > 0) {
+                const bool eigen = name.rfind("fixed-point@", 0) != 0;
+                s.inner_steps = c.state.inner_steps;
+                s.step_n = c.state.f.size() - (eigen ? 1 : 0);
+                s.step_log10_residual = c.state.f_log10;
+            }
+        }
+        out.push_back(std::move(s));
+    }
+    return out;
+}
+
 void check_resume(const Request& request, const io::Checkpoint& c)
 {
     auto differs = [](const std::string& what, const std::string& saved, const std::string& asked) {

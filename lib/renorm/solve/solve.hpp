@@ -54,6 +54,35 @@ struct Request {
 /// "eigenvalue-K@1.2N" for K = 1 .. request.eigenvalues (the real ones are refined).
 std::vector<std::string> stage_names(const Request& request);
 
+/// Where one stage of a checkpointed run stands (checkpoint_status()). Nothing here is a
+/// guarantee: the values are the stage's estimates.
+struct StageStatus {
+    enum class State { finished, running, waiting };
+    std::string name;
+    State state = State::waiting;
+    slong n = 0;                 ///< finished: its truncation; running: the iterate's
+    slong prec = 0;              ///< finished: its working precision, bits
+    double log10_residual = 0;   ///< finished: its last residual
+    /// finished: alpha (a fixed point; a = -1/G(1)) or the eigenvalue, to 20 significant digits
+    std::string value;
+    double digits = 0;           ///< running: digits the last finished correction aimed at
+    slong step = 0;              ///< running: Newton steps done
+    slong krylov_steps = 0;      ///< running: Krylov steps of the finished Newton steps
+    slong target_n = 0;          ///< running: the truncation the stage will end at (0: not known yet)
+    /// running: Krylov steps already done inside the unfinished Newton step (saved at a GMRES
+    /// restart); -1 when the state was saved between two Newton steps.
+    slong inner_steps = -1;
+    /// running, saved inside a step: that step's truncation and the log10 of its residual (the
+    /// iterate's measured accuracy; `digits` is what the last correction was expected to reach)
+    slong step_n = 0;
+    double step_log10_residual = 0;
+};
+
+/// The stages of the run that wrote `checkpoint` (stage_names() of its request), in the order the
+/// run takes them, each finished, running or waiting. An eigenvalue-K pair is listed as waiting
+/// although the run skips it when that eigenvalue turns out not to be real.
+std::vector<StageStatus> checkpoint_status(const io::Checkpoint& checkpoint);
+
 /// Throws std::invalid_argument naming the first difference when `checkpoint` was written for
 /// another request (order text, digits, eigenvalues, basis used), or names a stage this request
 /// does not run, or holds a running state of the wrong shape.
