@@ -3,6 +3,7 @@
 #include <renorm/newton/fixed_point.hpp>
 
 #include <chrono>
+#include <cmath>
 #include <cstdio>
 #include <string>
 #include <unistd.h>
@@ -60,10 +61,13 @@ public:
             const double s =
                 std::chrono::duration<double>(std::chrono::steady_clock::now() - m_start).count();
             const std::string left = time_left_text(p.seconds_left);
-            const std::string krylov =
+            std::string krylov =
                 p.krylov_running >= 0 ? ", correcting: " + std::to_string(p.krylov_running) + " Krylov steps so far"
                 : p.krylov_steps >= 0 ? ", " + std::to_string(p.krylov_steps) + " Krylov steps"
                                       : "";
+            if (p.krylov_running >= 0 && p.krylov_gained >= 0 && p.krylov_needed > 0)
+                krylov += " (" + std::to_string(std::lround(p.krylov_gained)) + " of " +
+                          std::to_string(std::lround(p.krylov_needed)) + " digits)";
             std::fprintf(stderr, "%s[%6.1fs] z=%s %s step %ld: N=%ld, %ld bits, residual 1e%.0f%s%s%s%s",
                          m_lines ? "" : "\r\033[K", s, p.order.c_str(), p.stage.c_str(),
                          static_cast<long>(p.step), static_cast<long>(p.n), static_cast<long>(p.prec),

@@ -190,7 +190,15 @@ TEST(Krylov, ResumingFromInsideANewtonStepGivesTheSameIterate)
     o.krylov_cycle = 1;
     o.on_step = [&](const newton::KrylovState& s) { saved.push_back(s); };
     slong running_reports = 0; // progress inside corrections, at each restart
-    o.progress = [&](const newton::Progress& p) { running_reports += p.krylov_running >= 1 ? 1 : 0; };
+    o.progress = [&](const newton::Progress& p) {
+        if (p.krylov_running < 1)
+            return;
+        ++running_reports;
+        // the digits gained so far, short of the digits the correction needs (else it would
+        // have stopped)
+        EXPECT_GT(p.krylov_gained, 0.0);
+        EXPECT_LT(p.krylov_gained, p.krylov_needed);
+    };
     newton::FixedPoint full = newton::approx_refine(start_z2(), 300, o);
     ASSERT_TRUE(full.converged) << full.message;
     o.progress = nullptr;
@@ -272,6 +280,25 @@ TEST(Krylov, FgmresContinuesFromARestartExactly)
                                               [&](const newton::FgmresCycle& c) { cycles.push_back(c); });
     ASSERT_GT(steps, 0);
     ASSERT_GE(cycles.size(), 2u);
+    // The digits each cycle reports as gained are those of the true residual of its correction
+    // (GMRES's rotated right-hand side equals ||b - A x|| up to rounding).
+    auto log10_norm = [&](const BallVec& v) {
+        double s = 0;
+        for (slong k = 0; k < n; ++k)
+            s += std::pow(arf_get_d(arb_midref(v[k]), ARF_RND_NEAR), 2);
+        return 0.5 * std::log10(s);
+    };
+    double before = 0;
+    for (const auto& c : cycles) {
+        BallVec ax, r(n);
+        apply(ax, c.delta);
+        for (slong k = 0; k < n; ++k)
+            arb_sub(r[k], rhs[k], ax[k], prec);
+        EXPECT_NEAR(c.gained, log10_norm(rhs) - log10_norm(r), 1e-6) << "after " << c.steps << " steps";
+        EXPECT_GT(c.gained, before);
+        before = c.gained;
+    }
+    EXPECT_LT(before, 30.0);
     for (size_t i = 0; i < cycles.size(); ++i) {
         EXPECT_EQ(cycles[i].restarts, static_cast<slong>(i + 1));
         BallVec y;

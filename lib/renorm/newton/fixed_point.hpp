@@ -29,6 +29,10 @@ struct Progress {
     /// Inside a long correction (reported at its GMRES restarts): Krylov steps done so far;
     /// log10_residual is then the residual the correction started from. -1 otherwise.
     slong krylov_running = -1;
+    /// With krylov_running: the digits the correction has gained so far (-1: not known) and the
+    /// digits it needs.
+    double krylov_gained = -1;
+    double krylov_needed = -1;
 };
 using ProgressFn = std::function<void(const Progress&)>;
 

@@ -156,9 +156,11 @@ slong approx_fgmres(BallVec& delta, const BallVec& b,
     if (!std::isfinite(target))
         return 0; // b = 0: delta = 0
     slong total = resume ? resume->steps : 0;
+    const double b_log10 = target + rel_digits;
+    double gained = resume ? resume->gained : -1;
     for (slong restart = resume ? resume->restarts : 0; restart <= restarts; ++restart) {
         if (restart > 0 && on_restart && !(resume && restart == resume->restarts))
-            on_restart(FgmresCycle{delta, restart, total});
+            on_restart(FgmresCycle{delta, restart, total, gained});
         BallVec r(len);
         if (restart == 0) {
             r = b;
@@ -259,6 +261,7 @@ slong approx_fgmres(BallVec& delta, const BallVec& b,
             axpy(delta, y[static_cast<size_t>(i)], z[static_cast<size_t>(i)], prec);
         if (reached)
             return total;
+        gained = b_log10 - log10_of(g[static_cast<size_t>(k)]);
     }
     return -1;
 }
@@ -408,6 +411,8 @@ KrylovResult approx_newton_krylov(KrylovProblem& problem, KrylovState state, dou
             if (options.progress) {
                 Progress p{options.stage, state.step, n, prec, r, options.order, -1, -1};
                 p.krylov_running = c.steps;
+                p.krylov_gained = c.gained;
+                p.krylov_needed = k_rel;
                 options.progress(p);
             }
             if (!options.on_step)

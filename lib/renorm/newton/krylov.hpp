@@ -133,6 +133,10 @@ struct FgmresCycle {
     BallVec delta;      ///< the correction so far
     slong restarts = 0; ///< cycles done
     slong steps = 0;    ///< Krylov steps done
+    /// Digits the correction has gained so far, log10(||b|| / ||b - J delta||), as GMRES's
+    /// rotated right-hand side estimates it at the end of the last cycle; -1 when not known (a
+    /// state read back from a checkpoint). For progress reports only.
+    double gained = -1;
 };
 
 /// Flexible GMRES for J delta = b with right preconditioner `precondition`, at `prec` bits,
