@@ -1,6 +1,7 @@
 // `renorm checkpoint FILE`: where a checkpointed run stands (its request, the stages finished
 // and their values, how far the running stage got), without running anything.
 #include "commands.hpp"
+#include "progress.hpp"
 
 #include <renorm/io/checkpoint.hpp>
 #include <renorm/solve/solve.hpp>
@@ -32,20 +33,6 @@ const char* state_text(solve::StageStatus::State s)
         return "waiting";
     }
     return "";
-}
-
-/// "2 h 05 min", "3 min 20 s"; "unknown" for a negative count.
-std::string duration_text(double seconds)
-{
-    if (seconds < 0)
-        return "unknown (the file was written before sittings were timed)";
-    const long s = std::lround(seconds);
-    char buf[64];
-    if (s >= 3600)
-        std::snprintf(buf, sizeof buf, "%ld h %02ld min", s / 3600, (s % 3600) / 60);
-    else
-        std::snprintf(buf, sizeof buf, "%ld min %02ld s", s / 60, s % 60);
-    return buf;
 }
 
 /// 10^x as "1.9e-48" (x may be far below a double's range).
@@ -124,7 +111,9 @@ int run_checkpoint(const CheckpointArgs& a)
     std::cout << "checkpoint " << a.file << ": z = " << c.order << ", " << c.digits << " digits, " << c.eigenvalues
               << " eigenvalues after delta, " << c.basis << " basis\n"
               << "written by renorm " << c.version << " (commit " << c.commit << "); wall time of all sittings: "
-              << duration_text(c.seconds) << "\n"
+              << (c.seconds >= 0 ? approx_duration_text(c.seconds)
+                                 : std::string("unknown (the file was written before sittings were timed)"))
+              << "\n"
               << "stages (" << finished << " of " << stages.size() << " finished):\n";
     for (const auto& s : stages) {
         std::cout << "  " << s.name << ": " << state_text(s.state);

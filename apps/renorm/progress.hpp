@@ -20,21 +20,28 @@ inline double available_memory_bytes()
     return 0.8 * static_cast<double>(pages) * static_cast<double>(size);
 }
 
-/// "<1 s left", "~12 s left", "~7 min left", "~2.5 h left"; empty when the estimate is unknown (negative).
-inline std::string time_left_text(double seconds)
+/// "<1 s", "~12 s", "~7 min", "~2.5 h"; empty for a negative (unknown) duration.
+inline std::string approx_duration_text(double seconds)
 {
     if (!(seconds >= 0))
         return "";
     char buf[48];
     if (seconds < 1)
-        std::snprintf(buf, sizeof buf, "<1 s left");
+        std::snprintf(buf, sizeof buf, "<1 s");
     else if (seconds < 120)
-        std::snprintf(buf, sizeof buf, "~%.0f s left", seconds);
+        std::snprintf(buf, sizeof buf, "~%.0f s", seconds);
     else if (seconds < 7200)
-        std::snprintf(buf, sizeof buf, "~%.0f min left", seconds / 60);
+        std::snprintf(buf, sizeof buf, "~%.0f min", seconds / 60);
     else
-        std::snprintf(buf, sizeof buf, "~%.1f h left", seconds / 3600);
+        std::snprintf(buf, sizeof buf, "~%.1f h", seconds / 3600);
     return buf;
+}
+
+/// "~12 min left" and the like; empty for a negative (unknown) estimate.
+inline std::string time_left_text(double seconds)
+{
+    const std::string d = approx_duration_text(seconds);
+    return d.empty() ? d : d + " left";
 }
 
 /// How progress is shown.

@@ -166,6 +166,16 @@ std::vector<std::string> stage_names(const Request& request)
     return names;
 }
 
+namespace {
+
+/// Every stage but the two fixed points solves an eigenpair (its unknowns end with the eigenvalue).
+bool is_eigen_stage(const std::string& name)
+{
+    return name.rfind("fixed-point@", 0) != 0;
+}
+
+} // namespace
+
 std::vector<StageStatus> checkpoint_status(const io::Checkpoint& c)
 {
     Request q;
@@ -174,18 +184,17 @@ std::vector<StageStatus> checkpoint_status(const io::Checkpoint& c)
     for (const std::string& name : stage_names(q)) {
         StageStatus s;
         s.name = name;
+        auto finished = [&s](const auto& r, const Ball& value) {
+            s.state = StageStatus::State::finished;
+            s.n = r.n;
+            s.prec = r.prec;
+            s.log10_residual = r.log10_residual;
+            s.value = ball::approx_decimal(value, 20);
+        };
         if (auto it = c.fixed_points.find(name); it != c.fixed_points.end()) {
-            s.state = StageStatus::State::finished;
-            s.n = it->second.n;
-            s.prec = it->second.prec;
-            s.log10_residual = it->second.log10_residual;
-            s.value = ball::approx_decimal(it->second.a, 20);
+            finished(it->second, it->second.a);
         } else if (auto e = c.eigenpairs.find(name); e != c.eigenpairs.end()) {
-            s.state = StageStatus::State::finished;
-            s.n = e->second.n;
-            s.prec = e->second.prec;
-            s.log10_residual = e->second.log10_residual;
-            s.value = ball::approx_decimal(e->second.lambda, 20);
+            finished(e->second, e->second.lambda);
         } else if (name == c.running) {
             s.state = StageStatus::State::running;
             s.n = c.state.n;
@@ -194,9 +203,8 @@ std::vector<StageStatus> checkpoint_status(const io::Checkpoint& c)
             s.krylov_steps = c.state.krylov_total;
             s.target_n = c.state.n_final;
             if (c.state.f.size() > 0) {
-                const bool eigen = name.rfind("fixed-point@", 0) != 0;
                 s.inner_steps = c.state.inner_steps;
-                s.step_n = c.state.f.size() - (eigen ? 1 : 0);
+                s.step_n = c.state.f.size() - (is_eigen_stage(name) ? 1 : 0);
                 s.step_log10_residual = c.state.f_log10;
             }
         }
@@ -221,8 +229,7 @@ void check_resume(const Request& request, const io::Checkpoint& c)
         differs("--basis", c.basis, to_string(choose_basis(request)));
     const std::vector<std::string> names = stage_names(request);
     auto known = [&](const std::string& name, bool eigen) {
-        const bool is_eigen = name.rfind("fixed-point@", 0) != 0;
-        if (std::find(names.begin(), names.end(), name) == names.end() || is_eigen != eigen)
+        if (std::find(names.begin(), names.end(), name) == names.end() || is_eigen_stage(name) != eigen)
             throw std::invalid_argument("the checkpoint names a stage '" + name + "' that this run does not have");
     };
     for (const auto& [name, fp] : c.fixed_points)
@@ -230,7 +237,7 @@ void check_resume(const Request& request, const io::Checkpoint& c)
     for (const auto& [name, ep] : c.eigenpairs)
         known(name, true);
     if (!c.running.empty()) {
-        const bool eigen = c.running.rfind("fixed-point@", 0) != 0;
+        const bool eigen = is_eigen_stage(c.running);
         known(c.running, eigen);
         // The unknowns: n series coefficients, and the eigenvalue after them for an eigenpair.
         if (c.state.x.size() != c.state.n + (eigen ? 1 : 0))
