@@ -340,3 +340,24 @@ TEST(Krylov, DenseInnerSolveGivesTheSameDigitsInTheSameNewtonSteps)
     // Source: delta to 100 digits, from memory and certified (reference_values.hpp).
     EXPECT_GE(agreeing_digits(e.lambda, test_ref::delta_z2), 58);
 }
+
+// The rule for building a better preconditioner, on the block sizes a 10,000-digit run of z = 2
+// meets (cap 377 digits, 1161 modes; the truncation grows 411, 813, 1615, ...).
+TEST(Krylov, PreconditionerIsRebuiltUpToTheCapAndNoFurther)
+{
+    using newton::detail::preconditioner_improves;
+    // Delta's block, built at 377 digits when the truncation was 813: the full 1161-mode block
+    // is only 1.43 times larger, yet it is the cap, so it is built.
+    EXPECT_TRUE(preconditioner_improves(377, 813, 377, 1161, 377, 1161));
+    // At the cap: never rebuilt again.
+    EXPECT_FALSE(preconditioner_improves(377, 1161, 377, 1161, 377, 1161));
+    // Below the cap, 1.5 times more modes or digits is worth an LU, less is not.
+    EXPECT_TRUE(preconditioner_improves(131, 211, 255, 411, 377, 1161));
+    EXPECT_FALSE(preconditioner_improves(255, 700, 300, 800, 377, 1161));
+    EXPECT_TRUE(preconditioner_improves(255, 411, 300, 813, 377, 1161));
+    // The digits may reach the cap in a step below 1.5 times (255 -> 377).
+    EXPECT_TRUE(preconditioner_improves(255, 795, 377, 795, 377, 1161));
+    // More modes at fewer digits (a late step whose correction needs few digits): not built.
+    EXPECT_FALSE(preconditioner_improves(377, 813, 40, 1161, 377, 1161));
+    EXPECT_FALSE(preconditioner_improves(377, 1161, 13, 69, 377, 1161));
+}

@@ -91,6 +91,20 @@ slong dense_solve(BallVec& delta, const KrylovProblem& problem, const BallVec& x
 
 } // namespace
 
+namespace detail {
+
+bool preconditioner_improves(double pc_digits, slong pc_size, double q_want, slong m_want, double q_cap,
+                             slong m_cap)
+{
+    const bool more_digits = q_want > pc_digits && q_want >= std::min(1.5 * pc_digits, q_cap);
+    const bool more_modes = m_want > pc_size && q_want >= pc_digits &&
+                            static_cast<double>(m_want) >= std::min(1.5 * static_cast<double>(pc_size),
+                                                                    static_cast<double>(m_cap));
+    return more_digits || more_modes;
+}
+
+} // namespace detail
+
 BallPoly krylov_series(const BallVec& x, slong n)
 {
     BallPoly p;
@@ -369,8 +383,8 @@ KrylovResult approx_newton_krylov(KrylovProblem& problem, KrylovState state, dou
         const double q_want = std::min({now, q_cap, k_rel + 10.0});
         const slong m_want = std::clamp<slong>(static_cast<slong>(std::ceil(3.0 * q_want)) + 30, 8,
                                                std::min(options.precond_max, n));
-        if (!pc || (q_want >= 1.5 * state.pc_digits && state.pc_digits < q_cap) ||
-            (m_want >= 3 * state.pc_size / 2 && q_want >= state.pc_digits)) {
+        const slong m_cap = std::min(options.precond_max, static_cast<slong>(std::ceil(3.0 * q_cap)) + 30);
+        if (!pc || detail::preconditioner_improves(state.pc_digits, state.pc_size, q_want, m_want, q_cap, m_cap)) {
             state.pc_size = m_want;
             state.pc_prec = bits_for(q_want + 10);
             // Kept at the preconditioner's own precision: all it is used at, and a small

@@ -151,6 +151,18 @@ slong approx_fgmres(BallVec& delta, const BallVec& b,
                     slong max_steps, slong restarts, slong prec, const FgmresCycle* resume = nullptr,
                     const std::function<void(const FgmresCycle&)>& on_restart = {});
 
+namespace detail {
+/// Whether a preconditioner of q_want digits and m_want modes is worth building over the one of
+/// pc_digits and pc_size: when it has 1.5 times more digits, or 1.5 times more modes at no fewer
+/// digits, or reaches the cap (q_cap digits, m_cap modes) the 1.5 rule would step over. Without
+/// that last clause delta's block at 10,000 digits stayed at 813 modes (built when the truncation
+/// was 813; 1161 next was not 1.5 times more) while the fixed point's reached the cap of 1161,
+/// and delta's Krylov steps gained half the fixed point's digits (DEVELOPERS.md, "Known
+/// problems").
+bool preconditioner_improves(double pc_digits, slong pc_size, double q_want, slong m_want, double q_cap,
+                             slong m_cap);
+} // namespace detail
+
 /// The series part x_0 .. x_{n-1} of an unknown vector as a polynomial. Exact.
 BallPoly krylov_series(const BallVec& x, slong n);
 /// An unknown vector of n + extras entries holding p's first n coefficients, extras zero. Exact.
