@@ -59,17 +59,17 @@ TEST(Krylov, FgmresSolvesIdentityPlusRankOneExactly)
         v[k] = std::ldexp(1.0, static_cast<int>(-k));
         b[k] = static_cast<double>((k % 3) - 1);
     }
-    auto apply = [&](BallVec& y, const BallVec& x) {
+    auto apply = [&](BallVec& y, const BallVec& x, slong p) {
         y = BallVec(n);
         Ball vx;
         for (slong k = 0; k < n; ++k) {
             Ball t(v[k]);
-            arb_addmul(vx.get(), t.get(), x[k], prec);
+            arb_addmul(vx.get(), t.get(), x[k], p);
         }
         for (slong k = 0; k < n; ++k) {
             Ball t(u[k]);
-            arb_mul(y[k], t.get(), vx.get(), prec);
-            arb_add(y[k], y[k], x[k], prec);
+            arb_mul(y[k], t.get(), vx.get(), p);
+            arb_add(y[k], y[k], x[k], p);
         }
     };
     auto identity = [](BallVec& y, const BallVec& x) { y = x; };
@@ -89,7 +89,7 @@ TEST(Krylov, FgmresSolvesIdentityPlusRankOneExactly)
     }
     // The residual of the computed solution is at the requested 100 digits.
     BallVec jx;
-    apply(jx, x);
+    apply(jx, x, prec);
     for (slong k = 0; k < n; ++k) {
         Ball d;
         arb_sub(d.get(), jx[k], rhs[k], prec);
@@ -265,10 +265,10 @@ TEST(Krylov, FgmresContinuesFromARestartExactly)
     // cycle gains about a factor 3); the state after each cycle, resumed, ends at the same bits
     // and step count.
     const slong n = 30, prec = 300;
-    auto apply = [&](BallVec& y, const BallVec& x) {
+    auto apply = [&](BallVec& y, const BallVec& x, slong p) {
         y = BallVec(n);
         for (slong k = 0; k < n; ++k)
-            arb_mul_si(y[k], x[k], 30 + k, prec);
+            arb_mul_si(y[k], x[k], 30 + k, p);
     };
     auto identity = [](BallVec& y, const BallVec& x) { y = x; };
     BallVec rhs(n);
@@ -291,7 +291,7 @@ TEST(Krylov, FgmresContinuesFromARestartExactly)
     double before = 0;
     for (const auto& c : cycles) {
         BallVec ax, r(n);
-        apply(ax, c.delta);
+        apply(ax, c.delta, prec);
         for (slong k = 0; k < n; ++k)
             arb_sub(r[k], rhs[k], ax[k], prec);
         EXPECT_NEAR(c.gained, log10_norm(rhs) - log10_norm(r), 1e-6) << "after " << c.steps << " steps";
@@ -360,4 +360,49 @@ TEST(Krylov, PreconditionerIsRebuiltUpToTheCapAndNoFurther)
     // More modes at fewer digits (a late step whose correction needs few digits): not built.
     EXPECT_FALSE(preconditioner_improves(377, 813, 40, 1161, 377, 1161));
     EXPECT_FALSE(preconditioner_improves(377, 1161, 13, 69, 377, 1161));
+}
+
+// Inexact Krylov: a product is asked for the digits the residual still has to lose (plus a
+// guard), so the precisions fall as GMRES converges, and the solution still meets the target.
+// Check value: the exact solution b_k / (1 + 0.3^k) of a diagonal system (I plus a compact part,
+// like I - DT).
+TEST(Krylov, RelaxedProductsAskForOnlyTheDigitsStillToGain)
+{
+    const slong n = 40, prec = 400; // about 120 digits: the first product needs them all
+    std::vector<Ball> diag(static_cast<size_t>(n));
+    for (slong k = 0; k < n; ++k) {
+        arb_set_d(diag[static_cast<size_t>(k)].get(), 0.3);
+        arb_pow_ui(diag[static_cast<size_t>(k)].get(), diag[static_cast<size_t>(k)].get(), static_cast<ulong>(k), prec);
+        arb_add_ui(diag[static_cast<size_t>(k)].get(), diag[static_cast<size_t>(k)].get(), 1, prec);
+    }
+    std::vector<slong> asked;
+    auto apply = [&](BallVec& y, const BallVec& x, slong p) {
+        asked.push_back(p);
+        y = BallVec(n);
+        for (slong k = 0; k < n; ++k)
+            arb_mul(y[k], x[k], diag[static_cast<size_t>(k)].get(), p);
+    };
+    auto identity = [](BallVec& y, const BallVec& x) { y = x; };
+    BallVec rhs(n);
+    for (slong k = 0; k < n; ++k)
+        arb_set_si(rhs[k], (k % 7) - 3);
+    BallVec x;
+    const slong steps = newton::approx_fgmres(x, rhs, apply, identity, 100, 40, 0, prec);
+    ASSERT_GT(steps, 4);
+    ASSERT_EQ(static_cast<slong>(asked.size()), steps);
+    EXPECT_EQ(asked.front(), prec); // nothing gained yet: all the digits
+    for (size_t i = 1; i < asked.size(); ++i)
+        EXPECT_LE(asked[i], asked[i - 1]) << "product " << i;
+    EXPECT_LT(asked.back(), prec / 2);
+    EXPECT_GE(asked.back(), 64); // the 20-digit guard
+    // The true residual meets the 100 digits, and x is the exact solution to 98 digits.
+    for (slong k = 0; k < n; ++k) {
+        Ball r, e;
+        arb_mul(r.get(), x[k], diag[static_cast<size_t>(k)].get(), prec);
+        arb_sub(r.get(), r.get(), rhs[k], prec);
+        EXPECT_LT(std::fabs(r.approx_double()), 1e-99) << "k = " << k;
+        arb_div(e.get(), rhs[k], diag[static_cast<size_t>(k)].get(), prec);
+        arb_sub(e.get(), e.get(), x[k], prec);
+        EXPECT_LT(std::fabs(e.approx_double()), 1e-98) << "k = " << k;
+    }
 }

@@ -62,6 +62,9 @@ slong bits_for(double digits)
     return ball::digits_to_bits(static_cast<slong>(std::ceil(std::max(digits, 1.0))) + 5) + 64;
 }
 
+/// Digits a relaxed Krylov product keeps beyond those the residual still needs (and its least).
+constexpr double kRelaxGuardDigits = 20;
+
 /// The relative cost of a step at truncation n and precision prec: a composition costs about
 /// n prec^1.9 (bench/compose measures it).
 double step_size(slong n, slong prec)
@@ -156,11 +159,10 @@ void KrylovPreconditioner::apply(BallVec& y, const BallVec& v, slong n, slong pr
     drop_radii(y);
 }
 
-slong approx_fgmres(BallVec& delta, const BallVec& b,
-                    const std::function<void(BallVec&, const BallVec&)>& apply_j,
+slong approx_fgmres(BallVec& delta, const BallVec& b, const FgmresApply& apply_j,
                     const std::function<void(BallVec&, const BallVec&)>& precondition, double rel_digits,
                     slong max_steps, slong restarts, slong prec, const FgmresCycle* resume,
-                    const std::function<void(const FgmresCycle&)>& on_restart)
+                    const std::function<void(const FgmresCycle&)>& on_restart, bool relax)
 {
     const slong len = b.size();
     delta = resume ? resume->delta : BallVec(len);
@@ -180,7 +182,7 @@ slong approx_fgmres(BallVec& delta, const BallVec& b,
             r = b;
         } else {
             BallVec jd;
-            apply_j(jd, delta);
+            apply_j(jd, delta, prec);
             for (slong i = 0; i < len; ++i)
                 arb_sub(r[i], b[i], jd[i], prec);
             drop_radii(r);
@@ -209,7 +211,17 @@ slong approx_fgmres(BallVec& delta, const BallVec& b,
         for (slong j = 0; j < k_max; ++j) {
             BallVec zj, w;
             precondition(zj, v[static_cast<size_t>(j)]);
-            apply_j(w, zj);
+            // Inexact Krylov (relaxation): this product's error enters the correction times the
+            // coefficient of z_j, which is at most about |g_j|, the residual still left; so it
+            // needs only the digits from there down to the target (plus a guard), not all of
+            // them. The later products of a long solve thus run at a fraction of prec.
+            slong p_j = prec;
+            if (relax) {
+                const double need = log10_of(g[static_cast<size_t>(j)]) - target + kRelaxGuardDigits;
+                if (std::isfinite(need))
+                    p_j = std::min(prec, bits_for(std::max(need, kRelaxGuardDigits)));
+            }
+            apply_j(w, zj, p_j);
             ++total;
             auto& col = h[static_cast<size_t>(j)];
             col.resize(static_cast<size_t>(j + 2));
@@ -443,9 +455,9 @@ KrylovResult approx_newton_krylov(KrylovProblem& problem, KrylovState state, dou
             state.f_log10 = 0;
         };
         const slong ks = options.dense_inner ? dense_solve(d_in, problem, x, b, n_in, p_in) : approx_fgmres(
-            d_in, b, [&](BallVec& y, const BallVec& v) { problem.apply(y, v, p_in); },
+            d_in, b, [&](BallVec& y, const BallVec& v, slong p) { problem.apply(y, v, p); },
             [&](BallVec& y, const BallVec& v) { pc->apply(y, v, n_in, p_in); }, k_rel, cycle,
-            cycles - 1, p_in, mid_step ? &saved : nullptr, on_restart);
+            cycles - 1, p_in, mid_step ? &saved : nullptr, on_restart, options.relaxed_products);
         if (ks < 0 && options.dense_inner) {
             res.message = "Newton: the dense Jacobian is numerically singular at step " + std::to_string(state.step);
             break;
