@@ -62,6 +62,13 @@ slong bits_for(double digits)
     return ball::digits_to_bits(static_cast<slong>(std::ceil(std::max(digits, 1.0))) + 5) + 64;
 }
 
+/// The preconditioner block for q digits a Krylov step: m ~ 3q + 30 modes (DEVELOPERS.md),
+/// between 8 and `limit`.
+slong block_for(double q, slong limit)
+{
+    return std::clamp<slong>(static_cast<slong>(std::ceil(3.0 * q)) + 30, 8, limit);
+}
+
 /// Digits a relaxed Krylov product keeps beyond those the residual still needs (and its least).
 constexpr double kRelaxGuardDigits = 20;
 
@@ -162,7 +169,7 @@ void KrylovPreconditioner::apply(BallVec& y, const BallVec& v, slong n, slong pr
 slong approx_fgmres(BallVec& delta, const BallVec& b, const FgmresApply& apply_j,
                     const std::function<void(BallVec&, const BallVec&)>& precondition, double rel_digits,
                     slong max_steps, slong restarts, slong prec, const FgmresCycle* resume,
-                    const std::function<void(const FgmresCycle&)>& on_restart, bool relax)
+                    const std::function<void(const FgmresCycle&)>& on_restart)
 {
     const slong len = b.size();
     delta = resume ? resume->delta : BallVec(len);
@@ -215,13 +222,8 @@ slong approx_fgmres(BallVec& delta, const BallVec& b, const FgmresApply& apply_j
             // coefficient of z_j, which is at most about |g_j|, the residual still left; so it
             // needs only the digits from there down to the target (plus a guard), not all of
             // them. The later products of a long solve thus run at a fraction of prec.
-            slong p_j = prec;
-            if (relax) {
-                const double need = log10_of(g[static_cast<size_t>(j)]) - target + kRelaxGuardDigits;
-                if (std::isfinite(need))
-                    p_j = std::min(prec, bits_for(std::max(need, kRelaxGuardDigits)));
-            }
-            apply_j(w, zj, p_j);
+            const double need = log10_of(g[static_cast<size_t>(j)]) - target + kRelaxGuardDigits;
+            apply_j(w, zj, std::isfinite(need) ? std::min(prec, bits_for(std::max(need, kRelaxGuardDigits))) : prec);
             ++total;
             auto& col = h[static_cast<size_t>(j)];
             col.resize(static_cast<size_t>(j + 2));
@@ -393,9 +395,8 @@ KrylovResult approx_newton_krylov(KrylovProblem& problem, KrylovState state, dou
         // needs no more digits than this step's correction.
         const double k_rel = std::max(3.0, t - now + 3.0);
         const double q_want = std::min({now, q_cap, k_rel + 10.0});
-        const slong m_want = std::clamp<slong>(static_cast<slong>(std::ceil(3.0 * q_want)) + 30, 8,
-                                               std::min(options.precond_max, n));
-        const slong m_cap = std::min(options.precond_max, static_cast<slong>(std::ceil(3.0 * q_cap)) + 30);
+        const slong m_want = block_for(q_want, std::min(options.precond_max, n));
+        const slong m_cap = block_for(q_cap, options.precond_max);
         if (!pc || detail::preconditioner_improves(state.pc_digits, state.pc_size, q_want, m_want, q_cap, m_cap)) {
             state.pc_size = m_want;
             state.pc_prec = bits_for(q_want + 10);
@@ -457,7 +458,7 @@ KrylovResult approx_newton_krylov(KrylovProblem& problem, KrylovState state, dou
         const slong ks = options.dense_inner ? dense_solve(d_in, problem, x, b, n_in, p_in) : approx_fgmres(
             d_in, b, [&](BallVec& y, const BallVec& v, slong p) { problem.apply(y, v, p); },
             [&](BallVec& y, const BallVec& v) { pc->apply(y, v, n_in, p_in); }, k_rel, cycle,
-            cycles - 1, p_in, mid_step ? &saved : nullptr, on_restart, options.relaxed_products);
+            cycles - 1, p_in, mid_step ? &saved : nullptr, on_restart);
         if (ks < 0 && options.dense_inner) {
             res.message = "Newton: the dense Jacobian is numerically singular at step " + std::to_string(state.step);
             break;

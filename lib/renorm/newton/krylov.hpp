@@ -104,9 +104,6 @@ struct KrylovOptions {
     /// digits, 40 below 3000). Deterministic, so a resumed run restarts where the first did.
     double restart_work = 1e9;
     slong cycle = 0; ///< a fixed restart length instead (tests use 1 to save inside every step)
-    /// GMRES asks each Krylov product for only the digits still to gain (approx_fgmres's
-    /// `relax`); false computes every product at the correction's full precision.
-    bool relaxed_products = true;
     /// Called after every Newton step with the state to save (a checkpoint), and within a step
     /// at every GMRES restart (then with `f` and `inner` set).
     std::function<void(const KrylovState&)> on_step;
@@ -150,14 +147,13 @@ using FgmresApply = std::function<void(BallVec&, const BallVec&, slong)>;
 /// Krylov steps taken, or -1 when the tolerance is not reached within max_steps * (restarts + 1).
 /// `on_restart` (if set) sees the state after every cycle that does not end the solve;
 /// `resume` continues from such a state (the same steps follow as without the interruption).
-/// With `relax`, each Krylov product is asked for only the digits the residual still needs to
-/// fall (from GMRES's estimate |g_j| down to the target, plus 20), so a solve gaining D digits
+/// Each Krylov product is asked for only the digits the residual still needs to fall (from GMRES's estimate |g_j| down to the target, plus 20), so a solve gaining D digits
 /// computes its later products at a fraction of prec (inexact Krylov; the residual at a restart
 /// is computed at prec). No guarantee.
 slong approx_fgmres(BallVec& delta, const BallVec& b, const FgmresApply& apply_j,
                     const std::function<void(BallVec&, const BallVec&)>& precondition, double rel_digits,
                     slong max_steps, slong restarts, slong prec, const FgmresCycle* resume = nullptr,
-                    const std::function<void(const FgmresCycle&)>& on_restart = {}, bool relax = true);
+                    const std::function<void(const FgmresCycle&)>& on_restart = {});
 
 namespace detail {
 /// Whether a preconditioner of q_want digits and m_want modes is worth building over the one of
