@@ -32,8 +32,8 @@ namespace {
 using namespace renorm;
 using io::RowStatus;
 
-const char* const shipped[] = {"alpha-delta-orders.csv", "alpha-delta-certified.csv",
-                               "alpha-delta-z2-1000.csv", "alpha-delta-z2-3000.csv"};
+const char* const shipped[] = {"alpha-delta-orders.csv", "alpha-delta-certified.csv", "alpha-delta-z2-1000.csv",
+                               "alpha-delta-z2-3000.csv", "alpha-delta-z2-10000.csv"};
 
 std::string read_text(const std::string& path)
 {
@@ -179,28 +179,37 @@ TEST(ShippedData, PublishedValues)
             ++checked;
         }
     }
-    EXPECT_GE(checked, 8); // z = 2, 4, 6 in the orders and certified tables, z = 2 at 1000 and 3000 digits
+    EXPECT_GE(checked, 9); // z = 2, 4, 6 in the orders and certified tables, z = 2 at 1000, 3000, 10000 digits
 }
 
-TEST(ShippedData, TheTwoLongRunsOfZ2AgreeOnEveryCommonDigit)
+TEST(ShippedData, TheLongRunsOfZ2AgreeOnEveryCommonDigit)
 {
-    // Two runs with different truncations (N = 826/992 against about 2450/2940), precisions and
-    // solver versions: the longer one's digits, rounded to the shorter one's, must give the
-    // shorter one's (within half a unit in the last place, plus the double rounding).
-    const io::Table t1 = load("alpha-delta-z2-1000.csv");
-    const io::Table t3 = load("alpha-delta-z2-3000.csv");
-    ASSERT_EQ(t1.rows.size(), 1u);
-    ASSERT_EQ(t3.rows.size(), 1u);
-    const io::TableRow& a = t1.rows[0];
-    const io::TableRow& b = t3.rows[0];
-    ASSERT_GE(b.alpha.digits, a.alpha.digits);
-    ASSERT_GE(b.delta.digits, a.delta.digits);
-    EXPECT_GE(a.alpha.digits, 1000);
-    EXPECT_GE(b.alpha.digits, 3000);
-    EXPECT_LE(ulps_apart(first_digits(b.alpha.text, a.alpha.digits), a.alpha.digits, a.alpha.text), 0.51);
-    EXPECT_LE(ulps_apart(first_digits(b.delta.text, a.delta.digits), a.delta.digits, a.delta.text), 0.51);
-    // And they are not the same string cut short by accident: the longer run has more digits.
-    EXPECT_GT(b.alpha.text.size(), a.alpha.text.size() + 1000);
+    // Three runs with different truncations (N = 826/992, about 2450/2940 and 8115/9738),
+    // precisions and solver versions: each longer run's digits, rounded to the shorter one's, must
+    // give the shorter one's (within half a unit in the last place, plus the double rounding).
+    const char* const runs[] = {"alpha-delta-z2-1000.csv", "alpha-delta-z2-3000.csv", "alpha-delta-z2-10000.csv"};
+    const long requested[] = {1000, 3000, 10000};
+    std::vector<io::TableRow> rows;
+    for (std::size_t i = 0; i < std::size(runs); ++i) {
+        SCOPED_TRACE(runs[i]);
+        const io::Table t = load(runs[i]);
+        ASSERT_EQ(t.rows.size(), 1u);
+        rows.push_back(t.rows[0]);
+        EXPECT_GE(rows.back().alpha.digits, requested[i]);
+        EXPECT_GE(rows.back().delta.digits, requested[i]);
+    }
+    for (std::size_t i = 0; i + 1 < rows.size(); ++i) {
+        SCOPED_TRACE(runs[i + 1]);
+        const io::TableRow& a = rows[i];
+        const io::TableRow& b = rows[i + 1];
+        ASSERT_GE(b.alpha.digits, a.alpha.digits);
+        ASSERT_GE(b.delta.digits, a.delta.digits);
+        EXPECT_LE(ulps_apart(first_digits(b.alpha.text, a.alpha.digits), a.alpha.digits, a.alpha.text), 0.51);
+        EXPECT_LE(ulps_apart(first_digits(b.delta.text, a.delta.digits), a.delta.digits, a.delta.text), 0.51);
+        // And they are not the same string cut short by accident: the longer run has more digits.
+        EXPECT_GT(b.alpha.text.size(), a.alpha.text.size() + 1000);
+        EXPECT_GT(b.delta.text.size(), a.delta.text.size() + 1000);
+    }
 }
 
 /// Recomputes `rows` at min(claimed, cap) digits and checks the shipped digits.
